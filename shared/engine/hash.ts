@@ -1,0 +1,140 @@
+// Canonical JSON and SHA-256: the two halves of every content hash and results hash.
+//
+// The canonical form is the one of RFC 8785 (JSON Canonicalization Scheme) for the values the
+// engine produces: object keys sorted by UTF-16 code units, no whitespace, numbers printed with
+// ECMAScript Number::toString (the shortest string that round-trips, which the language
+// specification fixes exactly, so every conforming engine prints the same digits), strings
+// escaped as JSON.stringify escapes them. On top of that, values JSON would silently change are
+// refused instead: NaN and ±Infinity (JSON.stringify writes them as null), bigint, functions,
+// symbols and `undefined` inside arrays each throw a TypeError naming the path of the value.
+// `undefined` object members are dropped, as JSON.stringify drops them, so an optional field that
+// is absent and one that is explicitly undefined hash the same.
+import { sha256 } from '@noble/hashes/sha2.js';
+import { bytesToHex, utf8ToBytes } from '@noble/hashes/utils.js';
+
+type TypedNumberArray =
+  | Float64Array
+  | Float32Array
+  | Int8Array
+  | Int16Array
+  | Int32Array
+  | Uint8Array
+  | Uint8ClampedArray
+  | Uint16Array
+  | Uint32Array;
+
+/** Serialises `value` canonically (see the module comment). Throws TypeError on non-JSON values. */
+export function canonicalJson(value: unknown): string {
+  const out: string[] = [];
+  write(value, '$', out, new Set());
+  return out.join('');
+}
+
+/** SHA-256 of UTF-8 text or raw bytes, as 64 lower-case hex digits. Pure; browser and node. */
+export function sha256Hex(input: string | Uint8Array): string {
+  const bytes = typeof input === 'string' ? utf8ToBytes(input) : input;
+  return bytesToHex(sha256(bytes));
+}
+
+/** SHA-256 hex of the canonical JSON of `value`: the hash used for contents and results. */
+export function canonicalHash(value: unknown): string {
+  return sha256Hex(canonicalJson(value));
+}
+
+function formatNumber(n: number, path: string): string {
+  if (!Number.isFinite(n)) {
+    throw new TypeError(`canonicalJson: non-finite number ${String(n)} at ${path}`);
+  }
+  // Number::toString already prints -0 as "0" and integers below 1e21 without an exponent.
+  return String(n);
+}
+
+function isTypedNumberArray(value: unknown): value is TypedNumberArray {
+  return ArrayBuffer.isView(value) && !(value instanceof DataView) && !isBigIntArray(value);
+}
+
+function isBigIntArray(value: unknown): boolean {
+  return value instanceof BigInt64Array || value instanceof BigUint64Array;
+}
+
+function write(value: unknown, path: string, out: string[], ancestors: Set<object>): void {
+  if (value === null) {
+    out.push('null');
+    return;
+  }
+  switch (typeof value) {
+    case 'boolean':
+      out.push(value ? 'true' : 'false');
+      return;
+    case 'number':
+      out.push(formatNumber(value, path));
+      return;
+    case 'string':
+      out.push(JSON.stringify(value));
+      return;
+    case 'object':
+      break;
+    default:
+      throw new TypeError(`canonicalJson: cannot serialise a ${typeof value} at ${path}`);
+  }
+
+  const obj = value as object;
+  if (isTypedNumberArray(obj)) {
+    out.push('[');
+    for (let i = 0; i < obj.length; i++) {
+      if (i > 0) out.push(',');
+      out.push(formatNumber(obj[i], `${path}[${i}]`));
+    }
+    out.push(']');
+    return;
+  }
+  if (ArrayBuffer.isView(obj)) {
+    throw new TypeError(`canonicalJson: cannot serialise a ${obj.constructor.name} at ${path}`);
+  }
+  if (ancestors.has(obj)) {
+    throw new TypeError(`canonicalJson: circular reference at ${path}`);
+  }
+  const toJSON = (obj as { toJSON?: unknown }).toJSON;
+  if (typeof toJSON === 'function') {
+    ancestors.add(obj);
+    write((toJSON as () => unknown).call(obj), path, out, ancestors);
+    ancestors.delete(obj);
+    return;
+  }
+
+  ancestors.add(obj);
+  if (Array.isArray(obj)) {
+    out.push('[');
+    for (let i = 0; i < obj.length; i++) {
+      if (i > 0) out.push(',');
+      const item: unknown = obj[i];
+      if (item === undefined) {
+        throw new TypeError(`canonicalJson: undefined array element at ${path}[${i}]`);
+      }
+      write(item, `${path}[${i}]`, out, ancestors);
+    }
+    out.push(']');
+  } else {
+    if (obj instanceof Map || obj instanceof Set) {
+      throw new TypeError(`canonicalJson: cannot serialise a ${obj.constructor.name} at ${path}`);
+    }
+    const record = obj as Record<string, unknown>;
+    // Default sort compares UTF-16 code units, which is the order RFC 8785 prescribes.
+    const keys = Object.keys(record)
+      .filter((k) => record[k] !== undefined)
+      .sort();
+    out.push('{');
+    for (let i = 0; i < keys.length; i++) {
+      if (i > 0) out.push(',');
+      const key = keys[i];
+      out.push(JSON.stringify(key), ':');
+      write(record[key], `${path}${memberPath(key)}`, out, ancestors);
+    }
+    out.push('}');
+  }
+  ancestors.delete(obj);
+}
+
+function memberPath(key: string): string {
+  return /^[A-Za-z_$][A-Za-z0-9_$]*$/.test(key) ? `.${key}` : `[${JSON.stringify(key)}]`;
+}
