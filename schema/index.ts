@@ -1,0 +1,4 @@
+/** Every table of the database. Later features add their own file here and re-export it. */
+export * from './users';
+export * from './teams';
+export * from './sessions';

@@ -1,0 +1,108 @@
+import type { Request, RequestHandler, Response } from 'express';
+import rateLimit from 'express-rate-limit';
+import type passport from 'passport';
+import { signinRequest, signupRequest, type User } from '@shared/api/auth';
+import { users } from '../../schema/index';
+import { HttpError, sendError } from '../http/errors';
+import { ApiRouter, publicRoute, type RouterDeps } from '../http/route';
+import { csrfToken } from './csrf';
+import { hashPassword } from './password';
+import { publicUser } from './passport';
+
+export interface AuthRateLimit {
+  windowMs: number;
+  /** Failed sign-ins, or sign-ups, per client address within the window. */
+  limit: number;
+}
+
+export const defaultAuthRateLimit: AuthRateLimit = { windowMs: 15 * 60 * 1000, limit: 10 };
+
+function limiter(options: AuthRateLimit, skipSuccessfulRequests: boolean): RequestHandler {
+  return rateLimit({
+    windowMs: options.windowMs,
+    limit: options.limit,
+    skipSuccessfulRequests,
+    standardHeaders: 'draft-7',
+    legacyHeaders: false,
+    handler: (_req, res, _next, used) => {
+      const minutes = Math.max(1, Math.ceil(used.windowMs / 60000));
+      sendError(
+        res,
+        new HttpError(429, 'rate_limited', `Too many attempts. Wait ${minutes} minute${minutes === 1 ? '' : 's'} and try again.`),
+      );
+    },
+  });
+}
+
+function logIn(req: Request, user: User): Promise<void> {
+  // passport ≥ 0.6 regenerates the session here, so a session id known before sign-in is worthless after.
+  return new Promise((resolve, reject) => req.login(user, (error) => (error ? reject(error) : resolve())));
+}
+
+function logOut(req: Request): Promise<void> {
+  return new Promise((resolve, reject) => req.logout((error) => (error ? reject(error) : resolve())));
+}
+
+function authenticateLocal(auth: passport.PassportStatic, req: Request, res: Response): Promise<User | null> {
+  return new Promise((resolve, reject) => {
+    auth.authenticate('local', { session: false }, (error: unknown, user: User | false) => {
+      if (error) reject(error);
+      else resolve(user || null);
+    })(req, res, reject);
+  });
+}
+
+const isUniqueViolation = (error: unknown) =>
+  (error as { code?: string }).code === '23505' || (error as { cause?: { code?: string } }).cause?.code === '23505';
+
+export function authRoutes(deps: RouterDeps & { passport: passport.PassportStatic; rateLimit?: AuthRateLimit }): ApiRouter {
+  const limits = deps.rateLimit ?? defaultAuthRateLimit;
+  const signinLimiter = limiter(limits, true);
+  const signupLimiter = limiter(limits, false);
+
+  return new ApiRouter('/api/auth', deps)
+    .get('/session', { access: publicRoute, summary: 'Current user (or null) and the CSRF token' }, ({ req, res, user }) => {
+      res.json({ user, csrfToken: csrfToken(req) });
+    })
+    .post(
+      '/signup',
+      { access: publicRoute, summary: 'Create an account and sign in', body: signupRequest, before: [signupLimiter] },
+      async ({ req, res, db, log, body }) => {
+        const passwordHash = await hashPassword(body.password);
+        let created;
+        try {
+          [created] = await db
+            .insert(users)
+            .values({ name: body.name, email: body.email, passwordHash })
+            .returning({ id: users.id, name: users.name, email: users.email });
+        } catch (error) {
+          if (isUniqueViolation(error)) {
+            throw new HttpError(409, 'email_taken', 'An account with this e-mail address already exists.', [
+              { field: 'email', message: 'An account with this e-mail address already exists.' },
+            ]);
+          }
+          throw error;
+        }
+        const user = publicUser(created);
+        await logIn(req, user);
+        log.info({ userId: user.id }, 'account created');
+        res.status(201).json({ user });
+      },
+    )
+    .post(
+      '/signin',
+      { access: publicRoute, summary: 'Sign in with e-mail and password', body: signinRequest, before: [signinLimiter] },
+      async ({ req, res, body }) => {
+        // passport-local reads req.body; give it the normalised values.
+        req.body = body;
+        const user = await authenticateLocal(deps.passport, req, res);
+        if (!user) throw new HttpError(401, 'bad_credentials', 'The e-mail address or the password is not right.');
+        await logIn(req, user);
+        res.json({ user });
+      },
+    )
+    .post('/signout', { access: publicRoute, summary: 'Sign out (ends the session)' }, async ({ req, res }) => {
+      await logOut(req);
+      res.status(204).end();
+    });
+}
