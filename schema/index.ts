@@ -2,3 +2,4 @@
 export * from './users';
 export * from './teams';
 export * from './sessions';
+export * from './worksheets';
