@@ -3,6 +3,10 @@
  * sent for this field (see `showServerErrors`). Pure (unit-tested under mocha).
  */
 
+/**
+ * Same as `passwordMinLength` in shared/api/auth.ts (the server's rule; a unit test holds them
+ * together). Not imported from there because that module brings zod into the bundle.
+ */
 export const PASSWORD_MIN_LENGTH = 10;
 
 export function validationMessage(errors: Readonly<Record<string, unknown>> | null | undefined, label: string): string | null {

@@ -2,8 +2,11 @@
  * Team roles, as the API names them, from most to least rights (each includes the reading rights of
  * those after it). Pure (unit-tested under mocha).
  */
-export const ROLES = ['owner', 'editor', 'reviewer', 'viewer'] as const;
-export type Role = (typeof ROLES)[number];
+import type { TeamRole } from '@shared/api/teams';
+
+export type Role = TeamRole;
+/** Same order as `teamRoles` in shared/api/teams.ts (a unit test holds them together). */
+export const ROLES: readonly Role[] = ['owner', 'editor', 'reviewer', 'viewer'];
 
 export interface RoleInfo {
   readonly role: Role;

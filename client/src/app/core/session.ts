@@ -2,23 +2,11 @@ import { HttpClient } from '@angular/common/http';
 import { Injectable, computed, inject, signal } from '@angular/core';
 import { firstValueFrom } from 'rxjs';
 
-export interface User {
-  readonly id: string;
-  readonly name: string;
-  readonly email: string;
-}
+import type { SessionResponse, SignupRequest, User } from '@shared/api/auth';
 
+export type { User };
 /** `GET /api/auth/session` (always 200). */
-export interface SessionInfo {
-  readonly user: User | null;
-  readonly csrfToken: string;
-}
-
-export interface SignUpRequest {
-  readonly name: string;
-  readonly email: string;
-  readonly password: string;
-}
+export type SessionInfo = SessionResponse;
 
 /**
  * Who is signed in, and the CSRF token the API wants on every state-changing request.
@@ -65,7 +53,7 @@ export class Session {
     return this.userAfterChange();
   }
 
-  async signUp(request: SignUpRequest): Promise<User> {
+  async signUp(request: SignupRequest): Promise<User> {
     await firstValueFrom(this.http.post<{ user: User }>('/api/auth/signup', request));
     return this.userAfterChange();
   }

@@ -1,31 +1,13 @@
 import { HttpClient } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import { firstValueFrom } from 'rxjs';
-import { Role } from '../core/roles';
+import type { TeamMember, TeamSummary } from '@shared/api/teams';
+import type { Role } from '../core/roles';
 
-/** A team as listed for the signed-in user, with that user's role in it. */
-export interface TeamSummary {
-  readonly id: string;
-  readonly name: string;
-  readonly role: Role;
-}
-
-export interface TeamMember {
-  readonly userId: string;
-  readonly name: string;
-  readonly email: string;
-  readonly role: Role;
-}
-
-/** `GET /api/teams/:teamId`. */
-export interface TeamDetail {
-  readonly team: { readonly id: string; readonly name: string };
-  readonly myRole: Role;
-  readonly members: readonly TeamMember[];
-}
+export type { TeamDetail, TeamMember, TeamSummary } from '@shared/api/teams';
 
 /**
- * Writes to the team API. Reads are `httpResource`s in the pages (`teamsUrl`, `teamUrl`) so they
+ * Writes to the team API. Reads are `httpResource`s in the pages (on `Teams.listUrl`, `Teams.detailUrl(id)`) so they
  * follow route inputs and can be reloaded after a write.
  */
 @Injectable({ providedIn: 'root' })

@@ -39,9 +39,9 @@ export class SignUp {
 
   protected readonly minLength = PASSWORD_MIN_LENGTH;
   protected readonly form = inject(NonNullableFormBuilder).group({
-    name: ['', [Validators.required, notBlank, Validators.maxLength(120)]],
-    email: ['', [Validators.required, Validators.email, Validators.maxLength(254)]],
-    password: ['', [Validators.required, Validators.minLength(PASSWORD_MIN_LENGTH), Validators.maxLength(200)]],
+    name: ['', [Validators.required, notBlank, Validators.maxLength(200)]],
+    email: ['', [Validators.required, Validators.email, Validators.maxLength(320)]],
+    password: ['', [Validators.required, Validators.minLength(PASSWORD_MIN_LENGTH), Validators.maxLength(1024)]],
   });
   private readonly password = toSignal(this.form.controls.password.valueChanges, { initialValue: '' });
   protected readonly passwordLength = computed(() => this.password().length);
