@@ -29,3 +29,9 @@ export function sessionSecret(): string {
   writeFileSync(file, `${secret}\n`, { mode: 0o600 });
   return secret;
 }
+
+/** SPREADPROOF_AUTH_RATE_LIMIT: failed sign-ins (and sign-ups) allowed per address per 15 minutes. */
+export function authRateLimitFromEnv(): { windowMs: number; limit: number } | undefined {
+  const limit = Number(process.env.SPREADPROOF_AUTH_RATE_LIMIT);
+  return Number.isInteger(limit) && limit > 0 ? { windowMs: 15 * 60 * 1000, limit } : undefined;
+}

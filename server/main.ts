@@ -11,7 +11,7 @@ import connectPgSimple from 'connect-pg-simple';
 import session from 'express-session';
 import { createApp } from './app';
 import { clientBuildExists } from './client-build';
-import { configuredPort, host, isProduction, sessionSecret } from './config';
+import { authRateLimitFromEnv, configuredPort, host, isProduction, sessionSecret } from './config';
 import { openDatabase, type DatabaseHandle } from './db/client';
 import { devCluster, ensureCluster } from './db/cluster';
 import { runMigrations } from './db/migrate';
@@ -57,6 +57,7 @@ export async function serve(options: ServeOptions): Promise<{ url: string; close
     production: isProduction(),
     clientDir: options.clientDir === undefined ? (clientBuildExists() ? clientBrowserDir : null) : options.clientDir,
     sessionStore: store,
+    authRateLimit: authRateLimitFromEnv(),
   });
 
   const server = http.createServer(app);

@@ -29,10 +29,16 @@ export interface ClusterConfig {
   settings?: Record<string, string>;
 }
 
+/** Ports can be moved (SPREADPROOF_PG_PORT, SPREADPROOF_TEST_PG_PORT) when two checkouts share one machine. */
+function portFromEnv(name: string, fallback: number): number {
+  const value = Number(process.env[name]);
+  return Number.isInteger(value) && value > 0 && value < 65536 ? value : fallback;
+}
+
 export const devCluster: ClusterConfig = {
   label: 'development',
   dataDir: path.join(projectDataDir, 'pg'),
-  port: 54329,
+  port: portFromEnv('SPREADPROOF_PG_PORT', 54329),
   database: 'spreadproof',
 };
 
@@ -40,7 +46,7 @@ export const devCluster: ClusterConfig = {
 export const testCluster: ClusterConfig = {
   label: 'test',
   dataDir: path.join(projectDataDir, 'test-pg'),
-  port: 54339,
+  port: portFromEnv('SPREADPROOF_TEST_PG_PORT', 54339),
   database: 'postgres',
   settings: { fsync: 'off', synchronous_commit: 'off', full_page_writes: 'off' },
 };
@@ -211,7 +217,6 @@ async function initCluster(major: number, config: ClusterConfig, log: Log): Prom
 
   const settings: Record<string, string> = {
     listen_addresses: "'127.0.0.1'",
-    port: String(config.port),
     unix_socket_directories: "''",
     ...config.settings,
   };
@@ -274,7 +279,8 @@ export async function ensureCluster(config: ClusterConfig, log: Log = () => {}):
     log(`Starting the ${config.label} PostgreSQL cluster on 127.0.0.1:${config.port}…`);
     await run(
       path.join(binDir(major), 'pg_ctl'),
-      ['start', '-D', config.dataDir, '-l', path.join(config.dataDir, 'server.log'), '-w', '-t', '60'],
+      // The port is given at each start (not written at creation) so it can be moved later.
+      ['start', '-D', config.dataDir, '-l', path.join(config.dataDir, 'server.log'), '-w', '-t', '60', '-o', `-p ${config.port}`],
       { asOwner: true },
     );
     started = true;
