@@ -106,7 +106,7 @@ export interface BonettBasis {
 export function bonettBasis(sample: Sample): BonettBasis {
   const n = sample.n;
   if (n < 5) throw new MethodInputError('insufficient-data', 'values', `Bonett's interval needs n ≥ 5 (got ${n})`);
-  const { variance, sumSquares, mean } = sample.moments;
+  const { variance, sumSquares } = sample.moments;
   if (variance === 0) throw new MethodInputError('zero-variance', 'values', 'the sample variance is zero: every value is the same');
   const sorted = sample.sorted();
   const trim = 1 / (2 * Math.sqrt(n - 4));
@@ -125,9 +125,20 @@ export function bonettBasis(sample: Sample): BonettBasis {
       c += Math.abs(s) >= Math.abs(v) ? s - t + v : v - t + s;
       s = t;
     }
-    trimmedMean = (s + c) / (n - 2 * trimmedCount);
+    const kept = n - 2 * trimmedCount;
+    const m0 = (s + c) / kept;
+    // Second pass (as R's mean): the correction makes the mean correctly rounded in practice, which
+    // matters because γ̂₄ is sensitive to the centre when the data sit far from zero.
+    let r = 0;
+    let rc = 0;
+    for (let i = trimmedCount; i < n - trimmedCount; i++) {
+      const d = sorted[i] - m0;
+      const t = r + d;
+      rc += Math.abs(r) >= Math.abs(d) ? r - t + d : d - t + r;
+      r = t;
+    }
+    trimmedMean = m0 + (r + rc) / kept;
   }
-  void mean;
   const { s4 } = centralPowerSums(sample.values, trimmedMean);
   const kurtosis = (n * s4) / (sumSquares * sumSquares);
   return { n, variance, kurtosis, trimmedMean, trimmedCount };
