@@ -27,6 +27,36 @@ export const routes: Routes = [
     canActivate: [signedInGuard],
     loadComponent: () => import('./teams/team-page/team-page').then((m) => m.TeamPage),
   },
+  {
+    path: 'worksheets/:worksheetId/history',
+    title: 'History · Spreadproof',
+    canActivate: [signedInGuard],
+    loadComponent: () => import('./worksheets/history/revision-history').then((m) => m.RevisionHistory),
+  },
+  {
+    path: 'revisions/:revisionId',
+    title: 'Revision · Spreadproof',
+    canActivate: [signedInGuard],
+    loadComponent: () => import('./worksheets/history/revision-view').then((m) => m.RevisionView),
+  },
+  {
+    path: 'compare',
+    title: 'Compare revisions · Spreadproof',
+    canActivate: [signedInGuard],
+    loadComponent: () => import('./worksheets/compare/revision-compare').then((m) => m.RevisionCompare),
+  },
+  {
+    path: 'reviews',
+    title: 'Reviews · Spreadproof',
+    canActivate: [signedInGuard],
+    loadComponent: () => import('./worksheets/review/review-inbox').then((m) => m.ReviewInbox),
+  },
+  {
+    // The published view: no sign-in, its own lazy chunk.
+    path: 'p/:token',
+    title: 'Published worksheet · Spreadproof',
+    loadComponent: () => import('./published/published-view').then((m) => m.PublishedView),
+  },
   // Later features (worksheets, history, compare, review, published view) add their routes here.
   {
     path: '**',
