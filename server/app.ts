@@ -16,7 +16,7 @@ import { createPassport } from './auth/passport';
 import type { Database } from './db/client';
 import { healthRoutes } from './health/routes';
 import { apiNotFound, errorHandler } from './http/errors';
-import type { ApiRouter, RouteDefinition, RouterDeps } from './http/route';
+import { assertAllDeclared, type ApiRouter, type RouteDefinition, type RouterDeps } from './http/route';
 import { createLogger, type Logger } from './log';
 import { teamRoutes } from './teams/routes';
 
@@ -119,6 +119,7 @@ export function createApp(deps: AppDeps): express.Express {
   const registry: RouteDefinition[] = [];
   for (const router of apiRouters({ db: deps.db, logger, passport, rateLimit: deps.authRateLimit })) {
     if (!router.mountPath.startsWith('/api/')) throw new Error(`API router mounted outside /api: ${router.mountPath}`);
+    assertAllDeclared(router);
     api.use(router.mountPath.slice('/api'.length), router.router);
     registry.push(...router.definitions);
   }

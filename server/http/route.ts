@@ -202,6 +202,21 @@ function parse(schema: Schema, value: unknown, where: 'params' | 'query' | 'body
   throw validationError(result.error, where);
 }
 
+/**
+ * Fails when a route was added to an ApiRouter's Express router directly (`router.router.get(…)`),
+ * bypassing the access rule and the registry: every layer must be one that `add()` created.
+ */
+export function assertAllDeclared(apiRouter: ApiRouter): void {
+  const layers = apiRouter.router.stack;
+  const routeLayers = layers.filter((layer) => layer.route);
+  if (routeLayers.length !== layers.length || routeLayers.length !== apiRouter.definitions.length) {
+    throw new Error(
+      `${apiRouter.mountPath}: ${layers.length} Express layer(s) but ${apiRouter.definitions.length} declared route(s). ` +
+        'Declare every API route with ApiRouter.get/post/put/patch/delete so it has an access rule and joins the registry.',
+    );
+  }
+}
+
 /** Route definitions are kept on the app so tests and tools can list them. */
 export function routeRegistry(app: express.Express): readonly RouteDefinition[] {
   return (app.locals.routeRegistry as RouteDefinition[] | undefined) ?? [];

@@ -10,7 +10,8 @@
 import { expect } from 'chai';
 import { users, memberships, teams } from '../../schema/index';
 import { hashPassword } from '../../server/auth/password';
-import { routeRegistry, type RouteDefinition } from '../../server/http/route';
+import { ApiRouter, assertAllDeclared, publicRoute, routeRegistry, type RouteDefinition } from '../../server/http/route';
+import { createLogger } from '../../server/log';
 import { Client, openTestApp, testPassword, uniqueEmail, type AppUnderTest } from './support';
 
 const callers = ['owner', 'editor', 'reviewer', 'viewer', 'non-member', 'signed-out'] as const;
@@ -131,6 +132,14 @@ describe('authorization matrix: every registered route × every role', function 
     expect(missing, 'registered routes with no expectation in the authorization matrix').to.deep.equal([]);
     const stale = Object.keys(expectations).filter((k) => !registered.includes(k));
     expect(stale, 'expectations for routes that are not registered').to.deep.equal([]);
+  });
+
+  it('refuses a route added behind the registry\'s back', () => {
+    const router = new ApiRouter('/api/example', { db: harness.database.db, logger: createLogger('silent') });
+    router.get('/declared', { access: publicRoute, summary: 'declared' }, ({ res }) => res.end());
+    assertAllDeclared(router);
+    router.router.get('/sneaked-in', (_req, res) => res.end());
+    expect(() => assertAllDeclared(router)).to.throw(/declared route/);
   });
 
   it('every route declares its access as public, signed-in or a team role', () => {
