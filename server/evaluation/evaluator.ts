@@ -7,11 +7,14 @@
 // the worker pool.
 import { and, eq } from 'drizzle-orm';
 import { ENGINE_VERSION } from '@shared/engine/version';
+import type { Table } from '@shared/engine/table/parse';
 import type { Worksheet } from '@shared/format/worksheet';
-import { revisions } from '../../schema/index';
+import { datasets, revisions } from '../../schema/index';
 import type { Database } from '../db/client';
+import type { ParsedInfo } from '../datasets/store';
+import { UploadProblem, type UploadProblemCode } from '../datasets/parse';
 import { SizedLru } from './lru';
-import { EvaluationPool, type EvaluationPoolOptions } from './pool';
+import { EvaluationFailedError, EvaluationPool, type EvaluationPoolOptions } from './pool';
 
 /** What the engine gets for each dataset a data step names: the stored bytes and how to read them. */
 export interface DatasetInput {
@@ -20,8 +23,43 @@ export interface DatasetInput {
 }
 
 export interface EvaluationTask {
+  kind: 'evaluate';
   document: Worksheet;
   datasets: Record<string, DatasetInput>;
+}
+
+/** Reading an uploaded file also runs in the pool: a 50 MB file is seconds of CPU. */
+export interface ParseTask {
+  kind: 'parse';
+  bytes: Uint8Array;
+  mediaType: string;
+}
+
+export interface ParseReply {
+  info: ParsedInfo;
+}
+
+/** The whole parsed table of a stored dataset (for previews and comparisons). */
+export interface TableTask {
+  kind: 'table';
+  bytes: Uint8Array;
+  mediaType: string;
+}
+
+export interface TableReply {
+  table: Table;
+}
+
+export type PoolTask = EvaluationTask | ParseTask | TableTask;
+export type PoolReply = EvaluationReply | ParseReply | TableReply;
+
+function tableSize(table: Table): number {
+  let size = 1000;
+  for (const c of table.columns) {
+    if (c.type === 'number') size += c.values.byteLength;
+    else for (const v of c.values) size += 2 * v.length + 16;
+  }
+  return size;
 }
 
 export interface EvaluationReply {
@@ -39,23 +77,27 @@ export interface Evaluated extends EvaluationReply {
 export interface EvaluatorOptions extends EvaluationPoolOptions {
   /** Upper bound of the in-process results cache, in UTF-16 code units of JSON. Default 64 Mi. */
   cacheSize?: number;
+  /** Upper bound of the in-process cache of parsed dataset tables, in bytes. Default 256 MiB. */
+  tableCacheBytes?: number;
 }
 
 export class Evaluator {
   readonly engineVersion = ENGINE_VERSION;
-  private pool: EvaluationPool<EvaluationTask, EvaluationReply> | undefined;
+  private pool: EvaluationPool<PoolTask, PoolReply> | undefined;
   private readonly cache: SizedLru<string, EvaluationReply>;
+  private readonly tables: SizedLru<string, Table>;
 
   constructor(
     private readonly db: Database,
     private readonly options: EvaluatorOptions = {},
   ) {
     this.cache = new SizedLru(options.cacheSize ?? 64 * 1024 * 1024, (r) => r.resultsJson.length + 200);
+    this.tables = new SizedLru(options.tableCacheBytes ?? 256 * 1024 * 1024, tableSize);
   }
 
   /** The pool starts on first use, so apps that never evaluate (most test suites) start no threads. */
-  private workers(): EvaluationPool<EvaluationTask, EvaluationReply> {
-    this.pool ??= new EvaluationPool<EvaluationTask, EvaluationReply>(this.options);
+  private workers(): EvaluationPool<PoolTask, PoolReply> {
+    this.pool ??= new EvaluationPool<PoolTask, PoolReply>(this.options);
     return this.pool;
   }
 
@@ -85,13 +127,39 @@ export class Evaluator {
       }
     }
     const datasets = await loadDatasets();
-    const reply = await this.workers().run({ document, datasets });
+    const reply = (await this.workers().run({ kind: 'evaluate', document, datasets })) as EvaluationReply;
     if (reply.engineVersion !== this.engineVersion) {
       // Workers load the same code as this process; a mismatch means a deployment mid-flight.
       throw new Error(`engine version mismatch: worker ${reply.engineVersion}, server ${this.engineVersion}`);
     }
     this.cache.set(key, reply);
     return { ...reply, cached: false };
+  }
+
+  /** Parses an uploaded file in a worker. Throws UploadProblem for a bad file. */
+  async parseUpload(bytes: Uint8Array, mediaType: string): Promise<ParsedInfo> {
+    try {
+      const reply = (await this.workers().run({ kind: 'parse', bytes, mediaType })) as ParseReply;
+      return reply.info;
+    } catch (error) {
+      if (error instanceof EvaluationFailedError) {
+        const d = (error.details ?? {}) as { status?: number; code?: UploadProblemCode; line?: number; column?: number };
+        throw new UploadProblem(d.status ?? 422, d.code ?? 'bad_file', error.message, d.line, d.column);
+      }
+      throw error;
+    }
+  }
+
+  /** The parsed table of a stored dataset (null if there is none); parsed in a worker, cached. */
+  async table(datasetId: string): Promise<Table | null> {
+    const hit = this.tables.get(datasetId);
+    if (hit) return hit;
+    const [row] = await this.db.select({ bytes: datasets.bytes, mediaType: datasets.mediaType }).from(datasets).where(eq(datasets.id, datasetId));
+    if (!row) return null;
+    const bytes = new Uint8Array(row.bytes.buffer, row.bytes.byteOffset, row.bytes.byteLength);
+    const reply = (await this.workers().run({ kind: 'table', bytes, mediaType: row.mediaType })) as TableReply;
+    this.tables.set(datasetId, reply.table);
+    return reply.table;
   }
 
   async close(): Promise<void> {

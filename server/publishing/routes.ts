@@ -1,0 +1,194 @@
+// Published links: a read-only view of one pinned revision for people without an account.
+// The token carries 256 random bits and is shown once; only its SHA-256 is stored, so a copy of
+// the database does not open any link.
+import { randomBytes } from 'node:crypto';
+import { and, desc, eq, isNull } from 'drizzle-orm';
+import rateLimit from 'express-rate-limit';
+import type { RequestHandler } from 'express';
+import { z } from 'zod';
+import type { Link, PublicRevisionAnswer, PublishAnswer } from '@shared/api/worksheets';
+import { sha256Hex } from '@shared/engine/hash';
+import { publishedLinks, revisions, users, worksheets } from '../../schema/index';
+import { recordAudit } from '../audit/audit';
+import { HttpError, notFound, sendError } from '../http/errors';
+import { ApiRouter, publicRoute, requireTeamRole, type RouterDeps } from '../http/route';
+import { linkTeam, revisionTeam, worksheetTeam } from '../worksheets/access';
+
+export interface PublicRateLimit {
+  windowMs: number;
+  /** Unknown or revoked tokens answered per client address within the window (guessing). */
+  failures: number;
+}
+
+export const defaultPublicRateLimit: PublicRateLimit = { windowMs: 15 * 60 * 1000, failures: 60 };
+
+const TOKEN_BYTES = 32;
+const tokenPattern = /^[A-Za-z0-9_-]{43}$/;
+
+export const newToken = () => randomBytes(TOKEN_BYTES).toString('base64url');
+export const tokenHash = (token: string) => sha256Hex(token);
+
+function guessLimiter(options: PublicRateLimit): RequestHandler {
+  return rateLimit({
+    windowMs: options.windowMs,
+    limit: options.failures,
+    // Only answers ≥ 400 count: reading a valid link is never throttled, guessing is.
+    skipSuccessfulRequests: true,
+    standardHeaders: 'draft-7',
+    legacyHeaders: false,
+    handler: (_req, res, _next, used) => {
+      const minutes = Math.max(1, Math.ceil(used.windowMs / 60000));
+      sendError(res, new HttpError(429, 'rate_limited', `Too many requests for unknown links. Wait ${minutes} minute${minutes === 1 ? '' : 's'} and try again.`));
+    },
+  });
+}
+
+const linkColumns = {
+  id: publishedLinks.id,
+  revisionId: publishedLinks.revisionId,
+  revisionNumber: revisions.number,
+  createdAt: publishedLinks.createdAt,
+  createdById: users.id,
+  createdByName: users.name,
+  revokedAt: publishedLinks.revokedAt,
+};
+
+function linkAnswer(row: { id: string; revisionId: string; revisionNumber: number; createdAt: Date; createdById: string; createdByName: string; revokedAt: Date | null }): Link {
+  return {
+    id: row.id,
+    revisionId: row.revisionId,
+    revisionNumber: row.revisionNumber,
+    createdAt: row.createdAt.toISOString(),
+    createdBy: { id: row.createdById, name: row.createdByName },
+    revokedAt: row.revokedAt ? row.revokedAt.toISOString() : null,
+  };
+}
+
+async function findLink(db: RouterDeps['db'], id: string): Promise<Link | null> {
+  const [row] = await db
+    .select(linkColumns)
+    .from(publishedLinks)
+    .innerJoin(revisions, eq(revisions.id, publishedLinks.revisionId))
+    .innerJoin(users, eq(users.id, publishedLinks.createdBy))
+    .where(eq(publishedLinks.id, id));
+  return row ? linkAnswer(row) : null;
+}
+
+export function publishingRoutes(deps: RouterDeps & { publicRateLimit?: PublicRateLimit }): ApiRouter[] {
+  const limiter = guessLimiter(deps.publicRateLimit ?? defaultPublicRateLimit);
+
+  const byRevision = new ApiRouter('/api/revisions/:revisionId/links', deps).post(
+    '/',
+    { access: requireTeamRole('owner', revisionTeam), summary: 'Publish a revision: a read-only link (token shown once)', params: z.object({ revisionId: z.uuid() }) },
+    async ({ res, db, user, team, params }) => {
+      const token = newToken();
+      const link = await db.transaction(async (tx) => {
+        const [rev] = await tx.select({ worksheetId: revisions.worksheetId }).from(revisions).where(eq(revisions.id, params.revisionId));
+        const [row] = await tx
+          .insert(publishedLinks)
+          .values({ revisionId: params.revisionId, tokenHash: tokenHash(token), createdBy: user.id })
+          .returning({ id: publishedLinks.id });
+        await recordAudit(tx, {
+          teamId: team.id,
+          actorId: user.id,
+          action: 'link.publish',
+          objectType: 'link',
+          objectId: row.id,
+          worksheetId: rev.worksheetId,
+          details: { revisionId: params.revisionId },
+        });
+        return row;
+      });
+      const answer: PublishAnswer = { link: (await findLink(db, link.id))!, token, url: `/p/${token}` };
+      res.status(201).json(answer);
+    },
+  );
+
+  const byWorksheet = new ApiRouter('/api/worksheets/:worksheetId/links', deps).get(
+    '/',
+    { access: requireTeamRole('owner', worksheetTeam), summary: "A worksheet's published links (without tokens)", params: z.object({ worksheetId: z.uuid() }) },
+    async ({ res, db, params }) => {
+      const rows = await db
+        .select(linkColumns)
+        .from(publishedLinks)
+        .innerJoin(revisions, eq(revisions.id, publishedLinks.revisionId))
+        .innerJoin(users, eq(users.id, publishedLinks.createdBy))
+        .where(eq(revisions.worksheetId, params.worksheetId))
+        .orderBy(desc(publishedLinks.createdAt), desc(publishedLinks.id));
+      res.json({ items: rows.map(linkAnswer) });
+    },
+  );
+
+  const links = new ApiRouter('/api/links', deps).post(
+    '/:linkId/revoke',
+    { access: requireTeamRole('owner', linkTeam), summary: 'Revoke a published link', params: z.object({ linkId: z.uuid() }) },
+    async ({ res, db, user, team, params }) => {
+      await db.transaction(async (tx) => {
+        const changed = await tx
+          .update(publishedLinks)
+          .set({ revokedAt: new Date(), revokedBy: user.id })
+          .where(and(eq(publishedLinks.id, params.linkId), isNull(publishedLinks.revokedAt)))
+          .returning({ revisionId: publishedLinks.revisionId });
+        if (changed.length > 0) {
+          const [rev] = await tx.select({ worksheetId: revisions.worksheetId }).from(revisions).where(eq(revisions.id, changed[0].revisionId));
+          await recordAudit(tx, {
+            teamId: team.id,
+            actorId: user.id,
+            action: 'link.revoke',
+            objectType: 'link',
+            objectId: params.linkId,
+            worksheetId: rev.worksheetId,
+            details: { revisionId: changed[0].revisionId },
+          });
+        }
+      });
+      res.json({ link: await findLink(db, params.linkId) });
+    },
+  );
+
+  const published = new ApiRouter('/api/public', deps).get(
+    '/:token',
+    { access: publicRoute, summary: 'The published revision behind a link (no sign-in; revoked → 410)', before: [limiter] },
+    async ({ req, res, db }) => {
+      const token = req.params.token;
+      if (typeof token !== 'string' || !tokenPattern.test(token)) throw notFound('There is no published worksheet at this link.');
+      const [row] = await db
+        .select({
+          revokedAt: publishedLinks.revokedAt,
+          title: worksheets.title,
+          number: revisions.number,
+          createdAt: revisions.createdAt,
+          contentHash: revisions.contentHash,
+          resultsHash: revisions.resultsHash,
+          engineVersion: revisions.engineVersion,
+          content: revisions.content,
+          results: revisions.results,
+        })
+        .from(publishedLinks)
+        .innerJoin(revisions, eq(revisions.id, publishedLinks.revisionId))
+        .innerJoin(worksheets, eq(worksheets.id, revisions.worksheetId))
+        .where(eq(publishedLinks.tokenHash, tokenHash(token)));
+      if (!row) throw notFound('There is no published worksheet at this link.');
+      if (row.revokedAt) throw new HttpError(410, 'link_revoked', 'This link has been withdrawn by the team that published it.');
+      const document = JSON.parse(row.content);
+      const answer: PublicRevisionAnswer = {
+        // The title of the pinned revision, not the worksheet's current one.
+        title: document.title ?? row.title,
+        revision: {
+          number: row.number,
+          createdAt: row.createdAt.toISOString(),
+          contentHash: row.contentHash,
+          resultsHash: row.resultsHash,
+          engineVersion: row.engineVersion,
+          document,
+          results: JSON.parse(row.results),
+        },
+      };
+      res.set('X-Robots-Tag', 'noindex, nofollow');
+      res.set('Referrer-Policy', 'no-referrer');
+      res.json(answer);
+    },
+  );
+
+  return [byRevision, byWorksheet, links, published];
+}
