@@ -94,7 +94,8 @@ function upperByIntegral(x: number, nu: number, delta: number): number {
   let fc = logG(c);
   let fd = logG(d);
   for (let i = 0; i < 200 && b - a > 1e-10 * (1 + b); i++) {
-    if (fc > fd) {
+    // both underflowed: the integrand dies at large s (normal and chi tails), so shrink from the right
+    if (fc > fd || (fc === -Infinity && fd === -Infinity)) {
       b = d;
       d = c;
       fd = fc;
@@ -112,7 +113,13 @@ function upperByIntegral(x: number, nu: number, delta: number): number {
   const lm = logG(m);
   const h = 1e-4 * Math.max(1, m);
   const second = m > h ? (logG(m + h) - 2 * lm + logG(m - h)) / (h * h) : -1;
-  const w = second < 0 ? 1 / Math.sqrt(-second) : 1;
+  let w = second < 0 ? 1 / Math.sqrt(-second) : 1;
+  if (m < 1e-6) {
+    // mode at the boundary s = 0 (ν ≤ 1 or a steep normal factor): the scale is the decay rate there
+    const hs = 1e-7;
+    const slope = (logG(m + hs) - lm) / hs;
+    if (slope < 0) w = Math.min(w, 1 / -slope);
+  }
   const lo = Math.max(0, m - 40 * w);
   const hi = m + 40 * w;
   const panels = 40;
