@@ -17,6 +17,8 @@ import { ROLES, ROLE_INFO, Role, roleAtLeast, roleLabel, sortByRole } from '../.
 import { showServerErrors } from '../../core/server-errors';
 import { Session } from '../../core/session';
 import { TeamDetail, TeamMember, Teams } from '../teams';
+import { ArchivedWorksheets } from '../archived-worksheets/archived-worksheets';
+import { AuditTrail } from '../audit-trail/audit-trail';
 
 /** One team: its members and their roles; owners add members, change roles and remove members. */
 @Component({
@@ -35,6 +37,8 @@ import { TeamDetail, TeamMember, Teams } from '../teams';
     MatIcon,
     MatProgressBar,
     MatTooltip,
+    ArchivedWorksheets,
+    AuditTrail,
   ],
   templateUrl: './team-page.html',
   styleUrl: './team-page.scss',
