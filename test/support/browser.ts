@@ -134,7 +134,16 @@ export async function withPage<T>(browser: Browser, options: PageOptions, body: 
   };
 
   try {
-    const result = await body(watched);
+    let result: T;
+    try {
+      result = await body(watched);
+    } catch (error) {
+      // Keep a picture of the moment it went wrong, and say where it is.
+      const shot = await watched.screenshot(`failed-${new Date().toISOString().replace(/[:.]/g, '-')}`).catch(() => null);
+      if (shot && error instanceof Error) error.message += `\n(screenshot: ${shot})`;
+      if (problems.length > 0 && error instanceof Error) error.message += `\nThe page also reported:\n  ${problems.join('\n  ')}`;
+      throw error;
+    }
     // Let late console messages (after the last action) arrive before judging.
     await page.waitForTimeout(100);
     if (problems.length > 0) {

@@ -1,5 +1,16 @@
 import { httpResource } from '@angular/common/http';
-import { ChangeDetectionStrategy, Component, computed, inject, input, signal } from '@angular/core';
+import {
+  ChangeDetectionStrategy,
+  Component,
+  ElementRef,
+  Injector,
+  afterNextRender,
+  computed,
+  inject,
+  input,
+  signal,
+  viewChild,
+} from '@angular/core';
 import { NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
 import { MatButton, MatIconButton } from '@angular/material/button';
 import { MatOption } from '@angular/material/core';
@@ -8,7 +19,6 @@ import { MatIcon } from '@angular/material/icon';
 import { MatInput } from '@angular/material/input';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatSelect } from '@angular/material/select';
-import { MatTooltip } from '@angular/material/tooltip';
 import { Router, RouterLink } from '@angular/router';
 import { ApiError, toApiError } from '../../core/api-error';
 import { validationMessage } from '../../core/field-messages';
@@ -36,7 +46,6 @@ import { AuditTrail } from '../audit-trail/audit-trail';
     MatIconButton,
     MatIcon,
     MatProgressBar,
-    MatTooltip,
     ArchivedWorksheets,
     AuditTrail,
   ],
@@ -48,6 +57,8 @@ export class TeamPage {
   private readonly teamsApi = inject(Teams);
   private readonly router = inject(Router);
   private readonly session = inject(Session);
+  private readonly injector = inject(Injector);
+  private readonly keepButton = viewChild('keepButton', { read: ElementRef<HTMLButtonElement> });
 
   /** Route parameter `:teamId`. */
   readonly teamId = input.required<string>();
@@ -138,6 +149,8 @@ export class TeamPage {
     this.memberError.set(null);
     this.memberNotice.set(null);
     this.confirmingRemoval.set(member.userId);
+    // Move focus into the confirmation so keyboard users land on the safe choice.
+    afterNextRender(() => this.keepButton()?.nativeElement.focus(), { injector: this.injector });
   }
 
   protected async remove(member: TeamMember): Promise<void> {
