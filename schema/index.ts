@@ -3,3 +3,4 @@ export * from './users';
 export * from './teams';
 export * from './sessions';
 export * from './worksheets';
+export * from './mail';
