@@ -11,6 +11,8 @@ import { clientBrowserDir, clientDistDir, projectRoot } from './paths';
 
 export const clientEntry = path.join(projectRoot, 'client', 'src', 'main.ts');
 const stampFile = path.join(clientDistDir, '.build-stamp');
+/** What the build depends on; a change to any of these makes the build stale. */
+export const clientBuildInputs = ['client', 'shared', 'angular.json', 'tsconfig.json'];
 
 export const clientSourcesExist = () => existsSync(clientEntry);
 export const clientBuildExists = () => existsSync(path.join(clientBrowserDir, 'index.html'));
@@ -31,15 +33,17 @@ async function newestMtime(target: string): Promise<number> {
   return newest;
 }
 
-export async function clientBuildIsFresh(): Promise<boolean> {
-  if (!clientBuildExists()) return false;
+/** True when the build (its stamp) is newer than every input; `root` is for tests. */
+export async function clientBuildIsFresh(root = projectRoot): Promise<boolean> {
+  const dist = path.join(root, path.relative(projectRoot, clientDistDir));
+  if (!existsSync(path.join(dist, 'browser', 'index.html'))) return false;
   let built: number;
   try {
-    built = (await fs.stat(stampFile)).mtimeMs;
+    built = (await fs.stat(path.join(dist, '.build-stamp'))).mtimeMs;
   } catch {
     return false;
   }
-  const sources = ['client', 'shared', 'angular.json', 'tsconfig.json'].map((p) => path.join(projectRoot, p));
+  const sources = clientBuildInputs.map((p) => path.join(root, p));
   const newest = Math.max(...(await Promise.all(sources.map(newestMtime))));
   return built > newest;
 }
