@@ -1,5 +1,6 @@
 import { Routes } from '@angular/router';
 import { signedInGuard, signedOutGuard } from './core/auth-guards';
+import { unsavedWorkGuard } from './worksheets/editor/unsaved-work-guard';
 
 export const routes: Routes = [
   {
@@ -26,6 +27,13 @@ export const routes: Routes = [
     title: 'Team · Spreadproof',
     canActivate: [signedInGuard],
     loadComponent: () => import('./teams/team-page/team-page').then((m) => m.TeamPage),
+  },
+  {
+    path: 'worksheets/:worksheetId',
+    title: 'Worksheet · Spreadproof',
+    canActivate: [signedInGuard],
+    canDeactivate: [unsavedWorkGuard],
+    loadComponent: () => import('./worksheets/editor/worksheet-editor').then((m) => m.WorksheetEditor),
   },
   {
     path: 'worksheets/:worksheetId/history',

@@ -15,11 +15,12 @@ import { showServerErrors } from '../core/server-errors';
 import { Session } from '../core/session';
 import { notBlank } from '../core/validators';
 import { TeamSummary, Teams } from '../teams/teams';
+import { WorksheetList } from '../worksheets/list/worksheet-list';
 
-/** Home: the user's teams, creating a team, and (later) the worksheets of those teams. */
+/** Home: the worksheets of the user's teams, the teams, and creating a team. */
 @Component({
   selector: 'sp-home',
-  imports: [ReactiveFormsModule, MatFormField, MatLabel, MatError, MatInput, MatButton, MatIcon, MatProgressBar, RouterLink],
+  imports: [ReactiveFormsModule, MatFormField, MatLabel, MatError, MatInput, MatButton, MatIcon, MatProgressBar, RouterLink, WorksheetList],
   templateUrl: './home.html',
   styleUrl: './home.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
