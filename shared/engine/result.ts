@@ -249,6 +249,18 @@ export function unavailableValue(id: string, label: string, reason: string, opti
   return numberValue(id, label, null, { ...options, reasonIfMissing: reason });
 }
 
+/**
+ * Significant digits for a location value (mean, median, a limit) shown beside a spread: enough
+ * that its last digit sits where the last of the spread's `digits` significant digits sits
+ * (25.0012 with sd 0.002715 → "25.001200", not "25.00"), capped at 15.
+ */
+export function locationDigits(value: number, spread: number, digits: number): number {
+  if (!Number.isFinite(value) || !Number.isFinite(spread) || spread <= 0 || value === 0) return digits;
+  const lastPlace = Math.floor(Math.log10(spread)) - (digits - 1);
+  const firstPlace = Math.floor(Math.log10(Math.abs(value)));
+  return Math.min(15, Math.max(digits, firstPlace - lastPlace + 1));
+}
+
 /** A p-value: 4 significant digits, "< 1e-300" style display below the double range. */
 export function pValue(id: string, label: string, p: number, digits = 4): ResultValue {
   const v = numberValue(id, label, p, { symbol: 'p', digits });
