@@ -18,6 +18,7 @@ import { healthRoutes } from './health/routes';
 import { apiNotFound, errorHandler } from './http/errors';
 import { assertAllDeclared, type ApiRouter, type RouteDefinition, type RouterDeps } from './http/route';
 import { createLogger, type Logger } from './log';
+import { mailRouters, MailService } from './mail/index';
 import { teamRoutes } from './teams/routes';
 
 export interface AppDeps {
@@ -36,6 +37,11 @@ export interface AppDeps {
   sessionStore?: session.Store;
   /** Largest JSON body accepted (express size string). */
   jsonLimit?: string;
+  /**
+   * Outbox, links and mailbox access of the mail-backed flows (server/mail). Default: messages are
+   * queued but not delivered; server/main.ts passes a started one (`startMail()`).
+   */
+  mail?: MailService;
 }
 
 export const sessionCookieName = 'spreadproof.sid';
@@ -44,8 +50,10 @@ export const sessionCookieName = 'spreadproof.sid';
  * Every API router. A new resource adds its `xyzRoutes(deps)` here; each of its routes then joins
  * the registry that test/server/authorization-matrix.test.ts checks.
  */
-function apiRouters(deps: RouterDeps & { passport: ReturnType<typeof createPassport>; rateLimit?: AuthRateLimit }): ApiRouter[] {
-  return [healthRoutes(deps), authRoutes(deps), teamRoutes(deps)];
+function apiRouters(
+  deps: RouterDeps & { passport: ReturnType<typeof createPassport>; rateLimit?: AuthRateLimit; mail: MailService },
+): ApiRouter[] {
+  return [healthRoutes(deps), authRoutes(deps), teamRoutes(deps), ...mailRouters(deps)];
 }
 
 /** The Content-Security-Policy the client is built to satisfy: nothing inline but styles, nothing remote. */
@@ -117,7 +125,13 @@ export function createApp(deps: AppDeps): express.Express {
   api.use(csrfProtection);
 
   const registry: RouteDefinition[] = [];
-  for (const router of apiRouters({ db: deps.db, logger, passport, rateLimit: deps.authRateLimit })) {
+  for (const router of apiRouters({
+    db: deps.db,
+    logger,
+    passport,
+    rateLimit: deps.authRateLimit,
+    mail: deps.mail ?? new MailService({ db: deps.db, logger }),
+  })) {
     if (!router.mountPath.startsWith('/api/')) throw new Error(`API router mounted outside /api: ${router.mountPath}`);
     assertAllDeclared(router);
     api.use(router.mountPath.slice('/api'.length), router.router);

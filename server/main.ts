@@ -16,6 +16,7 @@ import { openDatabase, type DatabaseHandle } from './db/client';
 import { devCluster, ensureCluster } from './db/cluster';
 import { runMigrations } from './db/migrate';
 import { createLogger } from './log';
+import { startMail } from './mail/index';
 import { clientBrowserDir } from './paths';
 
 export const listeningPrefix = 'Spreadproof listening on ';
@@ -49,7 +50,10 @@ export async function serve(options: ServeOptions): Promise<{ url: string; close
   const logger = createLogger();
   const { db, pool } = options.database;
   const store = new (connectPgSimple(session))({ pool, tableName: 'session', createTableIfMissing: false, pruneSessionInterval: 15 * 60 });
+  // Mail: SMTP_URL, or the local mail server; the sender delivers the outbox in the background.
+  const { mail, description: mailDescription } = await startMail({ db, logger });
   const app = createApp({
+    mail,
     db,
     pool,
     logger,
@@ -67,7 +71,9 @@ export async function serve(options: ServeOptions): Promise<{ url: string; close
   });
   const { port } = server.address() as AddressInfo;
   const url = `http://${host}:${port}`;
+  mail.useBaseUrl(url);
   console.log(`${listeningPrefix}${url}`);
+  console.log(mailDescription);
   if (options.banner) console.log(options.banner);
 
   let closing: Promise<void> | undefined;
@@ -80,6 +86,7 @@ export async function serve(options: ServeOptions): Promise<{ url: string; close
         setTimeout(() => server.closeAllConnections(), 3000).unref();
       });
       store.close();
+      await mail.close();
       await options.database.close();
     })());
 
