@@ -179,7 +179,7 @@ export function shownNumber(text: string | null): number {
 
 /** The sigma interval (chi-square) a read-only sheet shows for the step with id `stepId`. */
 export async function shownSigmaInterval(page: Page, stepId = 'sigma'): Promise<{ lower: number; upper: number }> {
-  const step = page.locator(`[data-testid="sheet-step"][data-step-id="${stepId}"]`);
+  const step = page.locator(`[data-testid="sheet"] li[data-step-id="${stepId}"]`);
   const lower = await step.locator('[data-value-id="chisq.sdLower"] .num').first().textContent();
   const upper = await step.locator('[data-value-id="chisq.sdUpper"] .num').first().textContent();
   return { lower: shownNumber(lower), upper: shownNumber(upper) };

@@ -114,7 +114,7 @@ describe('Owner: publishes a revision and revokes the link', function () {
         await reader.page.goto(url.pathname);
         await reader.page.getByTestId('published-revoked').waitFor();
         expect(await reader.page.getByRole('heading', { level: 1 }).innerText()).to.equal('This link is no longer available');
-        expect(await reader.page.locator('[data-testid="sheet-step"]').count()).to.equal(0);
+        expect(await reader.page.locator('[data-testid="sheet"]').count()).to.equal(0);
         await reader.screenshot('owner-6-link-revoked');
 
         // An address that was never published.

@@ -10,7 +10,7 @@ import {
   hasLevelSteps,
   parseLevel,
   statedLevels,
-} from '../../client/src/app/worksheets/history/confidence-what-if';
+} from '../../client/src/app/worksheets/history/sheet-at-level';
 import {
   formatAge,
   latestVerdicts,
@@ -19,7 +19,6 @@ import {
   shortHash,
   verdictText,
 } from '../../client/src/app/worksheets/history/revision-labels';
-import { parameterLines } from '../../client/src/app/worksheets/history/step-parameters';
 import { groupResultsByStep, isNotable, leafText, paramPathText, resultValueText } from '../../client/src/app/worksheets/compare/compare-values';
 import { auditActionLabel, auditDetailPairs } from '../../client/src/app/teams/audit-trail/audit-labels';
 
@@ -129,12 +128,6 @@ describe('client: revision labels', () => {
     expect(formatAge('2025-03-10T09:00:00.000Z', now)).to.equal('3 h ago');
     expect(formatAge('2025-03-09T12:00:00.000Z', now)).to.equal('yesterday');
     expect(formatAge('2025-03-07T12:00:00.000Z', now)).to.equal('3 days ago');
-  });
-
-  it('summarises step parameters in plain words', () => {
-    const lines = parameterLines(worksheet.steps[1]!);
-    expect(lines).to.deep.include({ label: 'Confidence', value: '90 %, 95 %' });
-    expect(lines).to.deep.include({ label: 'Data', value: 'step d, column x' });
   });
 });
 

@@ -5,16 +5,12 @@ import { MatButton } from '@angular/material/button';
 import { MatIcon } from '@angular/material/icon';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { Title } from '@angular/platform-browser';
-import type { PublicRevisionAnswer } from '@shared/api/worksheets';
+import { STANDARD_CAUTION } from '@shared/engine/result';
+import type { PublicRevisionAnswer } from '../worksheets/worksheet-api';
 import { toApiError } from '../core/api-error';
-import { ReadOnlySheet } from '../worksheets/history/read-only-sheet';
+import { CautionNotice } from '../worksheets/results/caution-notice';
+import { WorksheetReadout } from '../worksheets/results/worksheet-readout';
 import { formatDate, formatDateTime } from '../worksheets/history/revision-labels';
-
-/** The standing cautions of every published worksheet (DESIGN.md, "Cautions shown in the product"). */
-export const PUBLISHED_CAUTIONS: readonly string[] = [
-  'Results assume independent observations. The chi-square and F methods also assume normally distributed data and are strongly affected by heavy tails; check the normality steps and their warnings.',
-  'These results support, and do not replace, qualified judgement, your quality system, customer requirements and the applicable standards (for example ISO 16269 on statistical interpretation of data and ISO 22514 on capability).',
-];
 
 /**
  * A published revision, for anyone with the link (no sign-in): the read-only worksheet with all
@@ -23,7 +19,7 @@ export const PUBLISHED_CAUTIONS: readonly string[] = [
  */
 @Component({
   selector: 'sp-published-view',
-  imports: [MatButton, MatIcon, MatProgressBar, ReadOnlySheet],
+  imports: [MatButton, MatIcon, MatProgressBar, CautionNotice, WorksheetReadout],
   templateUrl: './published-view.html',
   styleUrl: './published-view.scss',
   // Not encapsulated: the print rules must also hide the app's top bar around this page.
@@ -48,16 +44,15 @@ export class PublishedView {
     if (apiError.status === 429) return { kind: 'busy' as const, message: apiError.message };
     return { kind: 'other' as const, message: apiError.message };
   });
-  /** Step cautions the engine attached beyond the standing ones, each once. */
+  /** Cautions the engine attached to steps beyond the standing one, each once. */
   protected readonly stepCautions = computed(() => {
     const a = this.answer();
     if (!a) return [];
     const seen = new Set<string>();
-    for (const step of a.revision.results.steps) if (step.caution) seen.add(step.caution);
+    for (const step of a.revision.results.steps) if (step.caution && step.caution !== STANDARD_CAUTION) seen.add(step.caution);
     return [...seen];
   });
 
-  protected readonly cautions = PUBLISHED_CAUTIONS;
   protected readonly date = formatDate;
   protected readonly when = formatDateTime;
 

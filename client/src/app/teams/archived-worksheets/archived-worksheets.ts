@@ -1,11 +1,10 @@
-import { HttpClient, httpResource } from '@angular/common/http';
+import { httpResource } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, inject, input, signal } from '@angular/core';
 import { MatButton } from '@angular/material/button';
 import { MatIcon } from '@angular/material/icon';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { RouterLink } from '@angular/router';
-import { firstValueFrom } from 'rxjs';
-import type { Page, WorksheetSummary } from '@shared/api/worksheets';
+import { Page, WorksheetApi, WorksheetSummary } from '../../worksheets/worksheet-api';
 import { toApiError } from '../../core/api-error';
 import { formatAge, formatDateTime } from '../../worksheets/history/revision-labels';
 
@@ -99,13 +98,13 @@ import { formatAge, formatDateTime } from '../../worksheets/history/revision-lab
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class ArchivedWorksheets {
-  private readonly http = inject(HttpClient);
+  private readonly api = inject(WorksheetApi);
 
   readonly teamId = input.required<string>();
   readonly isOwner = input(false);
 
   protected readonly archived = httpResource<Page<WorksheetSummary>>(
-    () => `/api/worksheets?teamId=${encodeURIComponent(this.teamId())}&archived=true&sort=updated&order=desc&pageSize=50`,
+    () => WorksheetApi.listUrl({ teamId: this.teamId(), archived: true, sort: 'updated', order: 'desc', pageSize: 50 }),
   );
   protected readonly items = computed(() => (this.archived.hasValue() ? this.archived.value().items : []));
   protected readonly total = computed(() => (this.archived.hasValue() ? this.archived.value().total : 0));
@@ -125,7 +124,7 @@ export class ArchivedWorksheets {
     this.actionError.set(null);
     this.notice.set(null);
     try {
-      await firstValueFrom(this.http.post(`/api/worksheets/${encodeURIComponent(worksheet.id)}/restore`, {}));
+      await this.api.restore(worksheet.id);
       this.notice.set(`${worksheet.title} is restored and can be edited again.`);
       this.archived.reload();
     } catch (error) {

@@ -7,7 +7,7 @@ import { MatPaginator, PageEvent } from '@angular/material/paginator';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatSelect } from '@angular/material/select';
 import { RouterLink } from '@angular/router';
-import type { AuditEvent, Page } from '@shared/api/worksheets';
+import { AuditEvent, Page, WorksheetApi } from '../../worksheets/worksheet-api';
 import { toApiError } from '../../core/api-error';
 import { formatDateTime } from '../../worksheets/history/revision-labels';
 import { AUDIT_ACTIONS, auditActionLabel, auditDetailPairs } from './audit-labels';
@@ -28,9 +28,8 @@ export class AuditTrail {
   protected readonly pageSize = signal(20);
 
   protected readonly events = httpResource<Page<AuditEvent>>(() => {
-    const params = new URLSearchParams({ page: String(this.page()), pageSize: String(this.pageSize()) });
-    if (this.action()) params.set('action', this.action());
-    return `/api/teams/${encodeURIComponent(this.teamId())}/audit?${params}`;
+    const action = this.action();
+    return WorksheetApi.auditUrl(this.teamId(), { page: this.page(), pageSize: this.pageSize(), ...(action ? { action } : {}) });
   });
   protected readonly items = computed(() => (this.events.hasValue() ? this.events.value().items : []));
   protected readonly total = computed(() => (this.events.hasValue() ? this.events.value().total : 0));

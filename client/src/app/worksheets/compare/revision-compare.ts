@@ -9,14 +9,13 @@ import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatSelect } from '@angular/material/select';
 import { MatTooltip } from '@angular/material/tooltip';
 import { Router, RouterLink } from '@angular/router';
-import type { CompareAnswer, RevisionAnswer, RevisionSummary } from '@shared/api/worksheets';
 import { toApiError } from '../../core/api-error';
 import { TeamSummary, Teams } from '../../teams/teams';
 import { ReviewPanel } from '../review/review-panel';
 import { VerdictBadges } from '../review/verdict-badges';
-import { RevisionsApi } from '../history/revisions-api';
+import { CompareAnswer, RevisionAnswer, RevisionSummary, WorksheetApi } from '../worksheet-api';
 import { formatDateTime, relativeChangeText, shortHash } from '../history/revision-labels';
-import { stepKindLabel } from '../history/step-kind-labels';
+import { stepKindInfo } from '../results/step-kinds';
 import { conclusionText, groupResultsByStep, isNotable, leafText, paramPathText, resultValueText } from './compare-values';
 
 interface PickerGroup {
@@ -63,7 +62,7 @@ const CHANGE_LABEL: Readonly<Record<string, string>> = {
 })
 export class RevisionCompare {
   private readonly router = inject(Router);
-  private readonly revisionsApi = inject(RevisionsApi);
+  private readonly api = inject(WorksheetApi);
 
   /** Query parameters `?from=<revisionId>&to=<revisionId>`. */
   readonly from = input<string | undefined>();
@@ -73,16 +72,16 @@ export class RevisionCompare {
 
   protected readonly fromRevision = httpResource<RevisionAnswer>(() => {
     const id = this.from();
-    return id ? RevisionsApi.revisionUrl(id) : undefined;
+    return id ? WorksheetApi.revisionUrl(id) : undefined;
   });
   protected readonly toRevision = httpResource<RevisionAnswer>(() => {
     const id = this.to();
-    return id ? RevisionsApi.revisionUrl(id) : undefined;
+    return id ? WorksheetApi.revisionUrl(id) : undefined;
   });
   protected readonly comparison = httpResource<CompareAnswer>(() => {
     const from = this.from();
     const to = this.to();
-    return from && to && from !== to ? RevisionsApi.compareUrl(from, to) : undefined;
+    return from && to && from !== to ? WorksheetApi.compareUrl(from, to) : undefined;
   });
   private readonly teams = httpResource<{ teams: TeamSummary[] }>(() => Teams.listUrl);
 
@@ -115,12 +114,12 @@ export class RevisionCompare {
   protected readonly pickerGroups = resource({
     params: () => this.pickerSources(),
     loader: async ({ params }): Promise<PickerGroup[]> => {
-      const timelines = await Promise.all(params.map((s) => this.revisionsApi.timeline(s.worksheetId).catch(() => null)));
+      const timelines = await Promise.all(params.map((s) => this.api.timeline(s.worksheetId).catch(() => null)));
       const groups: PickerGroup[] = params.map((s, i) => ({ ...s, revisions: timelines[i]?.items ?? [] }));
       // Forks of the compared worksheet join the list too (their titles come with the timeline).
       const forks = timelines[0]?.forks ?? [];
       const missing = forks.filter((f) => !groups.some((g) => g.worksheetId === f.worksheetId));
-      const forkTimelines = await Promise.all(missing.map((f) => this.revisionsApi.timeline(f.worksheetId).catch(() => null)));
+      const forkTimelines = await Promise.all(missing.map((f) => this.api.timeline(f.worksheetId).catch(() => null)));
       missing.forEach((f, i) => groups.push({ worksheetId: f.worksheetId, title: f.title, relation: 'fork', revisions: forkTimelines[i]?.items ?? [] }));
       return groups.filter((g) => g.revisions.length > 0);
     },
@@ -156,7 +155,7 @@ export class RevisionCompare {
 
   protected readonly shortHash = shortHash;
   protected readonly when = formatDateTime;
-  protected readonly kindLabel = stepKindLabel;
+  protected readonly kindLabel = (kind: string) => stepKindInfo(kind).label;
   protected readonly changeLabel = CHANGE_LABEL;
   protected readonly leaf = leafText;
   protected readonly paramPath = paramPathText;

@@ -6,12 +6,11 @@ import { MatDialog } from '@angular/material/dialog';
 import { MatIcon } from '@angular/material/icon';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { Router, RouterLink } from '@angular/router';
-import type { RevisionSummary, WorksheetDetail } from '@shared/api/worksheets';
 import { toApiError } from '../../core/api-error';
 import { roleAtLeast } from '../../core/roles';
 import { PublishDialog, PublishDialogData } from '../publish/publish-dialog';
 import { VerdictBadges } from '../review/verdict-badges';
-import { RevisionsApi, TimelineAnswer } from './revisions-api';
+import { RevisionSummary, TimelineAnswer, WorksheetApi, WorksheetDetail } from '../worksheet-api';
 import { formatAge, formatDateTime, shortHash } from './revision-labels';
 
 /**
@@ -33,8 +32,8 @@ export class RevisionHistory {
   /** Route parameter `:worksheetId`. */
   readonly worksheetId = input.required<string>();
 
-  protected readonly worksheet = httpResource<WorksheetDetail>(() => `/api/worksheets/${encodeURIComponent(this.worksheetId())}`);
-  protected readonly timeline = httpResource<TimelineAnswer>(() => RevisionsApi.timelineUrl(this.worksheetId()));
+  protected readonly worksheet = httpResource<WorksheetDetail>(() => WorksheetApi.worksheetUrl(this.worksheetId()));
+  protected readonly timeline = httpResource<TimelineAnswer>(() => WorksheetApi.timelineUrl(this.worksheetId()));
 
   protected readonly detail = computed(() => (this.worksheet.hasValue() ? this.worksheet.value() : null));
   protected readonly revisions = computed(() => (this.timeline.hasValue() ? this.timeline.value().items : []));

@@ -10,16 +10,16 @@ import { MatMenu, MatMenuItem, MatMenuTrigger } from '@angular/material/menu';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatTooltip } from '@angular/material/tooltip';
 import { Router, RouterLink } from '@angular/router';
-import type { EvaluationOutcome, RecheckAnswer } from '@shared/api/worksheets';
+import { firstValueFrom } from 'rxjs';
 import { ApiError, toApiError } from '../../core/api-error';
 import { roleAtLeast } from '../../core/roles';
 import { TeamSummary, Teams } from '../../teams/teams';
 import { PublishDialog, PublishDialogData } from '../publish/publish-dialog';
 import { ReviewPanel } from '../review/review-panel';
 import { VerdictBadges } from '../review/verdict-badges';
-import { PRESET_LEVELS, documentAtLevel, hasLevelSteps, parseLevel, statedLevels } from './confidence-what-if';
-import { ReadOnlySheet } from './read-only-sheet';
-import { RevisionAnswer, RevisionsApi } from './revisions-api';
+import { PRESET_LEVELS, documentAtLevel, hasLevelSteps, parseLevel, statedLevels } from './sheet-at-level';
+import { WorksheetReadout } from '../results/worksheet-readout';
+import { EvaluationOutcome, RecheckAnswer, RevisionAnswer, WorksheetApi } from '../worksheet-api';
 import { formatDateTime, percentText, relativeChangeText, shortHash } from './revision-labels';
 
 type LevelChoice = 'saved' | 'other' | `${number}`;
@@ -48,7 +48,7 @@ type LevelChoice = 'saved' | 'other' | `${number}`;
     MatMenuTrigger,
     MatProgressBar,
     MatTooltip,
-    ReadOnlySheet,
+    WorksheetReadout,
     ReviewPanel,
     VerdictBadges,
   ],
@@ -57,14 +57,14 @@ type LevelChoice = 'saved' | 'other' | `${number}`;
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class RevisionView {
-  private readonly revisionsApi = inject(RevisionsApi);
+  private readonly api = inject(WorksheetApi);
   private readonly dialog = inject(MatDialog);
   private readonly router = inject(Router);
 
   /** Route parameter `:revisionId`. */
   readonly revisionId = input.required<string>();
 
-  protected readonly revision = httpResource<RevisionAnswer>(() => RevisionsApi.revisionUrl(this.revisionId()));
+  protected readonly revision = httpResource<RevisionAnswer>(() => WorksheetApi.revisionUrl(this.revisionId()));
   private readonly teams = httpResource<{ teams: TeamSummary[] }>(() => Teams.listUrl);
 
   protected readonly answer = computed(() => (this.revision.hasValue() ? this.revision.value() : null));
@@ -115,7 +115,7 @@ export class RevisionView {
       const document = this.whatIfDocument();
       return a && document ? { worksheetId: a.worksheet.id, document } : undefined;
     },
-    loader: ({ params }): Promise<EvaluationOutcome> => this.revisionsApi.evaluateDraft(params.worksheetId, params.document),
+    loader: ({ params }): Promise<EvaluationOutcome> => firstValueFrom(this.api.evaluateDraft(params.worksheetId, params.document)),
   });
   protected readonly whatIfError = computed(() => {
     const error = this.whatIf.error();
@@ -175,7 +175,7 @@ export class RevisionView {
     this.rechecking.set(true);
     this.recheckError.set(null);
     try {
-      this.recheck.set(await this.revisionsApi.recheck(this.revisionId()));
+      this.recheck.set(await this.api.recheck(this.revisionId()));
     } catch (error) {
       this.recheckError.set(evaluationErrorText(toApiError(error)));
     } finally {
@@ -203,7 +203,7 @@ export class RevisionView {
                 document: { ...documentAtLevel(a.revision.document, level), title },
               };
             })();
-      const fork = await this.revisionsApi.fork(a.revision.id, request);
+      const fork = await this.api.fork(a.revision.id, request);
       await this.router.navigate(['/revisions', fork.head.id], { state: { forkedFrom: a.revision.id } });
     } catch (error) {
       const apiError = toApiError(error);

@@ -9,7 +9,7 @@ import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatTooltip } from '@angular/material/tooltip';
 import { toApiError } from '../../core/api-error';
 import { formatDateTime } from '../history/revision-labels';
-import { Link, LinksApi } from './links-api';
+import { Link, WorksheetApi } from '../worksheet-api';
 
 export interface PublishDialogData {
   worksheetId: string;
@@ -30,12 +30,12 @@ export interface PublishDialogData {
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class PublishDialog {
-  private readonly linksApi = inject(LinksApi);
+  private readonly api = inject(WorksheetApi);
   private readonly clipboard = inject(Clipboard);
   private readonly origin = inject(DOCUMENT).location.origin;
 
   protected readonly data = inject<PublishDialogData>(MAT_DIALOG_DATA);
-  protected readonly links = httpResource<{ items: Link[] }>(() => LinksApi.linksUrl(this.data.worksheetId));
+  protected readonly links = httpResource<{ items: Link[] }>(() => WorksheetApi.linksUrl(this.data.worksheetId));
   protected readonly linkList = computed(() => (this.links.hasValue() ? this.links.value().items : []));
   protected readonly activeForThisRevision = computed(() =>
     this.linkList().filter((l) => l.revisionId === this.data.revisionId && l.revokedAt === null),
@@ -62,7 +62,7 @@ export class PublishDialog {
     this.notice.set(null);
     this.copied.set(false);
     try {
-      const answer = await this.linksApi.publish(this.data.revisionId);
+      const answer = await this.api.publish(this.data.revisionId);
       this.created.set({ linkId: answer.link.id, url: new URL(answer.url, this.origin).toString() });
       this.links.reload();
     } catch (error) {
@@ -82,7 +82,7 @@ export class PublishDialog {
     this.revoking.set(link.id);
     this.error.set(null);
     try {
-      await this.linksApi.revoke(link.id);
+      await this.api.revokeLink(link.id);
       if (this.created()?.linkId === link.id) this.created.set(null);
       this.notice.set(`The link to revision ${link.revisionNumber} is revoked. It now opens a “no longer available” page.`);
       this.links.reload();

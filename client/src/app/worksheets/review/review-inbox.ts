@@ -6,7 +6,7 @@ import { MatProgressBar } from '@angular/material/progress-bar';
 import { RouterLink } from '@angular/router';
 import { toApiError } from '../../core/api-error';
 import { formatAge, formatDateTime } from '../history/revision-labels';
-import { Page, ReviewRequest, ReviewsApi } from './reviews-api';
+import { Page, ReviewRequest, WorksheetApi } from '../worksheet-api';
 
 /** Review requests addressed to me: open ones first; answered ones on demand. */
 @Component({
@@ -101,7 +101,7 @@ import { Page, ReviewRequest, ReviewsApi } from './reviews-api';
 })
 export class ReviewInbox {
   protected readonly status = signal<'open' | 'answered' | 'all'>('open');
-  protected readonly inbox = httpResource<Page<ReviewRequest>>(() => ReviewsApi.inboxUrl(this.status()));
+  protected readonly inbox = httpResource<Page<ReviewRequest>>(() => WorksheetApi.inboxUrl(this.status(), 1, 100));
   protected readonly items = computed(() => (this.inbox.hasValue() ? this.inbox.value().items : []));
   protected readonly loadError = computed(() => {
     const error = this.inbox.error();

@@ -10,7 +10,6 @@ import { MatInput } from '@angular/material/input';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatRadioButton, MatRadioGroup } from '@angular/material/radio';
 import { MatSelect } from '@angular/material/select';
-import type { RevisionSummary } from '@shared/api/worksheets';
 import { ApiError, toApiError } from '../../core/api-error';
 import { validationMessage } from '../../core/field-messages';
 import { roleAtLeast, roleLabel } from '../../core/roles';
@@ -18,7 +17,7 @@ import { showServerErrors } from '../../core/server-errors';
 import { Session } from '../../core/session';
 import { TeamDetail, Teams } from '../../teams/teams';
 import { VERDICT_LABEL, formatAge, formatDateTime, latestVerdicts, shortHash } from '../history/revision-labels';
-import { ReviewVerdictKind, ReviewsApi, RevisionReviewsAnswer } from './reviews-api';
+import { ReviewVerdictKind, RevisionReviewsAnswer, RevisionSummary, WorksheetApi } from '../worksheet-api';
 
 /** A comment is required when asking for changes (the server's rule too). */
 function commentNeededForChanges(control: AbstractControl<string>): ValidationErrors | null {
@@ -53,7 +52,7 @@ function commentNeededForChanges(control: AbstractControl<string>): ValidationEr
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class ReviewPanel {
-  private readonly reviewsApi = inject(ReviewsApi);
+  private readonly api = inject(WorksheetApi);
   private readonly session = inject(Session);
   private readonly fb = inject(NonNullableFormBuilder);
 
@@ -66,7 +65,7 @@ export class ReviewPanel {
 
   /** The id alone, so that a reloaded summary of the same revision does not reset the forms. */
   private readonly revisionId = computed(() => this.revision().id);
-  protected readonly reviews = httpResource<RevisionReviewsAnswer>(() => ReviewsApi.reviewsUrl(this.revisionId()));
+  protected readonly reviews = httpResource<RevisionReviewsAnswer>(() => WorksheetApi.reviewsUrl(this.revisionId()));
   protected readonly verdicts = computed(() => {
     if (!this.reviews.hasValue()) return [];
     return [...this.reviews.value().reviews].sort((a, b) => (a.createdAt < b.createdAt ? 1 : -1));
@@ -154,7 +153,7 @@ export class ReviewPanel {
     this.verdictNotice.set(null);
     const revision = this.revision();
     try {
-      await this.reviewsApi.giveVerdict(revision.id, verdict, comment.trim(), revision.contentHash);
+      await this.api.giveVerdict(revision.id, verdict, comment.trim(), revision.contentHash);
       this.verdictForm.reset({ verdict: '', comment: '' });
       this.verdictNotice.set(
         verdict === 'approved'
@@ -192,7 +191,7 @@ export class ReviewPanel {
     this.requestError.set(null);
     this.requestNotice.set(null);
     try {
-      const request = await this.reviewsApi.requestReview(this.revision().id, reviewerId, message.trim());
+      const request = await this.api.requestReview(this.revision().id, reviewerId, message.trim());
       this.requestForm.reset({ reviewerId: '', message: '' });
       this.requestOpen.set(false);
       this.requestNotice.set(`${request.reviewer.name} is asked to review revision ${request.revisionNumber}.`);

@@ -1,6 +1,6 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 import { MatIcon } from '@angular/material/icon';
-import type { ReviewVerdict } from '@shared/api/worksheets';
+import type { ReviewVerdict } from '../worksheet-api';
 import { VERDICT_LABEL, formatDateTime, latestVerdicts } from '../history/revision-labels';
 
 /** The verdict that counts for each reviewer of a revision (their latest), as small badges. */
