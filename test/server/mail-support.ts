@@ -10,7 +10,7 @@
  */
 import { expect } from 'chai';
 import { asc, eq, sql } from 'drizzle-orm';
-import nodemailer from 'nodemailer';
+import nodemailer, { type Transporter } from 'nodemailer';
 import { devMailbox, type DevMailboxRow } from '../../schema/index';
 import { createLogger, type Logger } from '../../server/log';
 import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fake-smtp';
@@ -21,6 +21,10 @@ import { suiteDatabaseUrl } from '../support/db';
 import { openTestApp, type AppUnderTest } from './support';
 
 export const testBaseUrl = 'http://127.0.0.1:4399';
+
+/** SMTP to the local mail server, as `npm start` sets it up. */
+export const fakeTransport = (fake: FakeSmtp): Transporter =>
+  nodemailer.createTransport({ host: fake.host, port: fake.port, secure: false, ignoreTLS: true });
 
 export interface MailTestEnv {
   harness: AppUnderTest;
@@ -34,13 +38,15 @@ export interface MailTestEnv {
 export async function openMailTestApp(
   options: Partial<Pick<MailServiceOptions, 'limits' | 'sender' | 'siteAdmins' | 'mailboxEnabled' | 'resetTtlMs' | 'invitationTtlMs'>> & {
     logger?: Logger;
+    /** Instead of SMTP to the local mail server (e.g. a server that never answers). */
+    transport?: Transporter;
   } = {},
 ): Promise<MailTestEnv> {
   const logger = options.logger ?? createLogger('silent');
   // The mail service needs the database before the app exists: a handle of its own on the run's database.
   const database = openDatabase(await suiteDatabaseUrl(), { max: 3 });
   const fake = await startFakeSmtp({ db: database.db, logger });
-  const transport = nodemailer.createTransport({ host: fake.host, port: fake.port, secure: false, ignoreTLS: true });
+  const transport = options.transport ?? fakeTransport(fake);
   const mail = new MailService({
     db: database.db,
     logger,
