@@ -71,7 +71,7 @@ export function runCapability(step: StepOfKind<'capability'>, ctx: RunContext, r
     result.conclusions.push({ id: 'cpkLowerBoundAtLeast1.33', value: (c.cpkLower as number) >= CPK_THRESHOLD, statement: `the ${percent(level)} lower confidence bound of Cpk is at least ${CPK_THRESHOLD} (a common-practice threshold; the customer's requirement governs)` });
     readings.push(`Cpk is ${fmt(c.cpk as number, digits)}; with ${percent(level)} confidence the true Cpk lies between ${fmt(c.cpkLower as number, digits)} and ${fmt(c.cpkUpper as number, digits)}${c.cp !== null ? ` and Cp between ${fmt(c.cpLower as number, digits)} and ${fmt(c.cpUpper as number, digits)}` : ''}. A normal model puts about ${fmt(c.fractionOutside * 1e6, 3)} parts per million outside the limits, if the process is stable and its output normal.`);
     result.sources.push(CITE.capability, CITE.bissell);
-    result.plot = capabilityPlot(mean, r.sd, lsl, usl, r.label, unit);
+    result.plot = capabilityPlot(mean, r.sd, lsl, usl, r.quantity, unit);
     if (n < 30) result.warnings.push({ code: 'small-n', message: `With n = ${n} the capability indices are very uncertain; judge by the lower bound, not the point value.` });
   }
 

@@ -80,6 +80,8 @@ export interface RunContext {
 /** One sample of a step's source. */
 export interface ResolvedSample {
   label: string;
+  /** Name of the measured column (with the group, if any) for axis titles, e.g. "bore (Line 1)". */
+  quantity: string;
   /** Identity of the sample (step, column, group) for matching a normality check; null for inline summaries. */
   key: string | null;
   unit?: string;
@@ -121,6 +123,7 @@ function checkSummary(stats: SummaryStatistics, field: string, label: string, mi
 function summaryToResolved(stats: SummaryStatistics, label: string, unit: string | undefined, key: string | null): ResolvedSample {
   const r: ResolvedSample = {
     label,
+    quantity: label,
     key,
     n: stats.n,
     mean: stats.mean ?? null,
@@ -263,7 +266,8 @@ export function resolveSource(ctx: RunContext, source: Source, options: ResolveO
     if (m.variance === 0 && !allowZero) {
       throw new StepFailure('zero-variance', groupField, `${where} of step "${source.step}" has zero variance (every value is ${m.mean}); no statement about the spread can be made`);
     }
-    const resolved: ResolvedSample = { label, key, n: m.n, mean: m.mean, variance: m.variance, sd: m.sd, sample, excluded };
+    const quantity = groupColumn ? `${source.column} (${g})` : (source.column as string);
+    const resolved: ResolvedSample = { label, quantity, key, n: m.n, mean: m.mean, variance: m.variance, sd: m.sd, sample, excluded };
     if (column.unit !== undefined) resolved.unit = column.unit;
     return resolved;
   });

@@ -97,7 +97,7 @@ export function runGroupComparison(step: StepOfKind<'group-comparison'>, ctx: Ru
     readings.push(`The one-way ANOVA ${a.pValue < alpha ? 'finds' : 'does not find'} a difference between the group means at the ${percent(alpha)} level (p = ${fmt(a.pValue, 3)}); its F test assumes equal variances.`);
     result.sources.push(CITE.anova);
   }
-  if (raw) result.plot = boxPlot(samples.map((s) => ({ label: s.label, sorted: (s.sample as Sample).sorted() })), 'measurements', unit);
+  if (raw) result.plot = boxPlot(samples.map((s) => ({ label: s.label, sorted: (s.sample as Sample).sorted() })), samples[0].quantity.replace(/ \(.*\)$/, ''), unit);
   result.reading = readings.join(' ');
   result.assumptions.push(INDEPENDENCE, normalityAssumption("Bartlett's test and the ANOVA F"));
   result.caution = STANDARD_CAUTION;

@@ -90,7 +90,7 @@ export function runNormalityCheck(step: StepOfKind<'normality-check'>, ctx: RunC
   result.reading = rejected
     ? `The data are unlikely to come from a normal distribution (${verdicts.join('; ')} at the ${percent(alpha)} level). Chi-square and F results for these data may mislead: prefer Bonett's interval and the Brown-Forsythe test.`
     : `No evidence against normality at the ${percent(alpha)} level (${verdicts.join('; ')}). This does not prove normality${n < 30 ? `, and with n = ${n} the tests have little power` : ''}; look at the probability plot too.`;
-  result.plot = probabilityPlot(probabilityPlotPoints(sorted), sample.moments.mean, sample.moments.sd, r.label, r.unit);
+  result.plot = probabilityPlot(probabilityPlotPoints(sorted), sample.moments.mean, sample.moments.sd, r.quantity, r.unit);
   result.sources.push(CITE.blom);
   result.assumptions.push(INDEPENDENCE);
   result.caution = STANDARD_CAUTION;

@@ -57,6 +57,7 @@ export function histogramWithNormal(sorted: Float64Array, mean: number, sd: numb
           x: { field: 'start', type: 'quantitative', title: axisTitle(label, unit) },
           x2: { field: 'end' },
           y: { field: 'count', type: 'quantitative', title: 'count' },
+          y2: { datum: 0 },
           tooltip: [{ field: 'start', type: 'quantitative' }, { field: 'end', type: 'quantitative' }, { field: 'count', type: 'quantitative' }],
         },
       },
@@ -282,14 +283,14 @@ export function boxPlot(groups: { label: string; sorted: Float64Array }[], label
 }
 
 /** Power against the true ratio, with the required power as a rule when given. */
-export function powerCurvePlot(points: { ratio: number; power: number }[], ratioLabel: string, title: string, requiredPower?: number): Spec {
+export function powerCurvePlot(points: { ratio: number; power: number }[], ratioLabel: string, title: string, requiredPower?: number, yTitle = 'power'): Spec {
   const layer: Spec[] = [
     {
       data: { values: points },
       mark: { type: 'line', point: false },
       encoding: {
         x: { field: 'ratio', type: 'quantitative', title: ratioLabel },
-        y: { field: 'power', type: 'quantitative', title: 'power', scale: { domain: [0, 1] } },
+        y: { field: 'power', type: 'quantitative', title: yTitle, scale: { domain: [0, 1] } },
       },
     },
   ];

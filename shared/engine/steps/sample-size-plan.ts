@@ -51,7 +51,7 @@ export function runSampleSizePlan(step: StepOfKind<'sample-size-plan'>, ctx: Run
     }
     const points: { ratio: number; power: number }[] = [];
     for (let m = 2; m <= Math.max(n * 2, 10); m += Math.max(1, Math.floor(n / 40))) points.push({ ratio: m, power: relativePrecisionProbability(m, d) });
-    result.plot = powerCurvePlot(points, 'n', `P(|s/sigma − 1| < ${plan.percent} %) against n`, plan.level);
+    result.plot = powerCurvePlot(points, 'n', `P(|s/sigma − 1| < ${plan.percent} %) against n`, plan.level, 'probability');
     return;
   }
 

@@ -52,7 +52,7 @@ export function runSpreadSummary(step: StepOfKind<'spread-summary'>, ctx: RunCon
     const pooled = Sample.of(all, 2);
     const m = pooled.moments;
     const overall: ResolvedSample = {
-      label: 'all groups', key: null, n: m.n, mean: m.mean, variance: m.variance, sd: m.sd, sample: pooled,
+      label: 'all groups', quantity: samples[0].quantity.replace(/ \(.*\)$/, ''), key: null, n: m.n, mean: m.mean, variance: m.variance, sd: m.sd, sample: pooled,
       excluded: samples.reduce((t, s) => t + s.excluded, 0),
     };
     if (unit !== undefined) overall.unit = unit;
@@ -94,9 +94,9 @@ export function runSpreadSummary(step: StepOfKind<'spread-summary'>, ctx: RunCon
   }
   const raw = samples.filter((s) => s.sample);
   if (primary?.sample) {
-    result.plot = histogramWithNormal(primary.sample.sorted(), primary.mean as number, primary.sd, primary.label, unit);
+    result.plot = histogramWithNormal(primary.sample.sorted(), primary.mean as number, primary.sd, primary.quantity, unit);
   } else if (raw.length > 1) {
-    result.plot = boxPlot(raw.map((s) => ({ label: s.label, sorted: (s.sample as Sample).sorted() })), raw[0].key ? JSON.parse(raw[0].key)[1] : 'value', unit);
+    result.plot = boxPlot(raw.map((s) => ({ label: s.label, sorted: (s.sample as Sample).sorted() })), raw[0].quantity.replace(/ \(.*\)$/, ''), unit);
   }
   result.assumptions.push(INDEPENDENCE);
   result.sources.push(CITE.chanGolubLeVeque, CITE.hyndmanFan);
