@@ -4,3 +4,4 @@ export * from './teams';
 export * from './sessions';
 export * from './worksheets';
 export * from './mail';
+export * from './rate-limits';

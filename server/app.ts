@@ -17,6 +17,7 @@ import type { Database } from './db/client';
 import { healthRoutes } from './health/routes';
 import { apiNotFound, errorHandler } from './http/errors';
 import { assertAllDeclared, type ApiRouter, type RouteDefinition, type RouterDeps } from './http/route';
+import { postgresRateLimitStores, type RateLimitStores } from './http/rate-limit-store';
 import { createLogger, type Logger } from './log';
 import { mailRouters, MailService } from './mail/index';
 import { teamRoutes } from './teams/routes';
@@ -33,6 +34,11 @@ export interface AppDeps {
   /** Folder with the built client (index.html); null or missing folder → a plain page at /. */
   clientDir?: string | null;
   authRateLimit?: AuthRateLimit;
+  /**
+   * Counters of the rate limiters. Default: PostgreSQL, shared by every process on the same
+   * database with the same session secret (server/http/rate-limit-store.ts).
+   */
+  rateLimitStores?: RateLimitStores;
   /** Defaults to a connect-pg-simple store on `pool` without its prune timer; main.ts passes one that prunes. */
   sessionStore?: session.Store;
   /** Largest JSON body accepted (express size string). */
@@ -130,6 +136,7 @@ export function createApp(deps: AppDeps): express.Express {
     logger,
     passport,
     rateLimit: deps.authRateLimit,
+    rateLimitStores: deps.rateLimitStores ?? postgresRateLimitStores(deps.db, deps.sessionSecret),
     mail: deps.mail ?? new MailService({ db: deps.db, logger }),
   })) {
     if (!router.mountPath.startsWith('/api/')) throw new Error(`API router mounted outside /api: ${router.mountPath}`);

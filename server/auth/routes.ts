@@ -1,5 +1,5 @@
 import type { Request, RequestHandler, Response } from 'express';
-import rateLimit from 'express-rate-limit';
+import rateLimit, { type Store } from 'express-rate-limit';
 import type passport from 'passport';
 import { signinRequest, signupRequest, type User } from '@shared/api/auth';
 import { users } from '../../schema/index';
@@ -17,8 +17,9 @@ export interface AuthRateLimit {
 
 export const defaultAuthRateLimit: AuthRateLimit = { windowMs: 15 * 60 * 1000, limit: 10 };
 
-function limiter(options: AuthRateLimit, skipSuccessfulRequests: boolean): RequestHandler {
+function limiter(options: AuthRateLimit, skipSuccessfulRequests: boolean, store?: Store): RequestHandler {
   return rateLimit({
+    store,
     windowMs: options.windowMs,
     limit: options.limit,
     skipSuccessfulRequests,
@@ -57,8 +58,8 @@ const isUniqueViolation = (error: unknown) =>
 
 export function authRoutes(deps: RouterDeps & { passport: passport.PassportStatic; rateLimit?: AuthRateLimit }): ApiRouter {
   const limits = deps.rateLimit ?? defaultAuthRateLimit;
-  const signinLimiter = limiter(limits, true);
-  const signupLimiter = limiter(limits, false);
+  const signinLimiter = limiter(limits, true, deps.rateLimitStores?.('signin'));
+  const signupLimiter = limiter(limits, false, deps.rateLimitStores?.('signup'));
 
   return new ApiRouter('/api/auth', deps)
     .get('/session', { access: publicRoute, summary: 'Current user (or null) and the CSRF token' }, ({ req, res, user }) => {

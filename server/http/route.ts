@@ -15,6 +15,7 @@ import type { User } from '@shared/api/auth';
 import { type TeamRole } from '@shared/api/teams';
 import type { Database } from '../db/client';
 import type { Logger } from '../log';
+import type { RateLimitStores } from './rate-limit-store';
 import { forbidden, notFound, unauthorized, validationError } from './errors';
 import { roleAtLeast } from '../teams/roles';
 
@@ -96,6 +97,8 @@ export interface RouteSpec<A extends Access, B extends Schema, P extends Schema,
 export interface RouterDeps {
   db: Database;
   logger: Logger;
+  /** Shared (PostgreSQL) counters for the routers' rate limiters; absent → per-process memory. */
+  rateLimitStores?: RateLimitStores;
 }
 
 type Method = RouteDefinition['method'];

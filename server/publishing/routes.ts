@@ -3,7 +3,7 @@
 // the database does not open any link.
 import { randomBytes } from 'node:crypto';
 import { and, desc, eq, isNull } from 'drizzle-orm';
-import rateLimit from 'express-rate-limit';
+import rateLimit, { type Store } from 'express-rate-limit';
 import type { RequestHandler } from 'express';
 import { z } from 'zod';
 import type { Link, PublicRevisionAnswer, PublishAnswer } from '@shared/api/worksheets';
@@ -28,8 +28,9 @@ const tokenPattern = /^[A-Za-z0-9_-]{43}$/;
 export const newToken = () => randomBytes(TOKEN_BYTES).toString('base64url');
 export const tokenHash = (token: string) => sha256Hex(token);
 
-function guessLimiter(options: PublicRateLimit): RequestHandler {
+function guessLimiter(options: PublicRateLimit, store?: Store): RequestHandler {
   return rateLimit({
+    store,
     windowMs: options.windowMs,
     limit: options.failures,
     // Only answers ≥ 400 count: reading a valid link is never throttled, guessing is.
@@ -75,7 +76,7 @@ async function findLink(db: RouterDeps['db'], id: string): Promise<Link | null> 
 }
 
 export function publishingRoutes(deps: RouterDeps & { publicRateLimit?: PublicRateLimit }): ApiRouter[] {
-  const limiter = guessLimiter(deps.publicRateLimit ?? defaultPublicRateLimit);
+  const limiter = guessLimiter(deps.publicRateLimit ?? defaultPublicRateLimit, deps.rateLimitStores?.('public-link-guesses'));
 
   const byRevision = new ApiRouter('/api/revisions/:revisionId/links', deps).post(
     '/',

@@ -23,6 +23,10 @@ export interface TestServer {
   /** Everything the process printed so far (for failure messages). */
   output(): string;
   stop(): Promise<void>;
+  /** Process id of the server (for tests that signal it themselves). */
+  pid: number;
+  /** Sends `signal` (default SIGKILL) and waits for the exit; the database is kept until stop(). */
+  kill(signal?: NodeJS.Signals): Promise<void>;
 }
 
 export interface TestServerOptions {
@@ -32,13 +36,20 @@ export interface TestServerOptions {
   authRateLimit?: number;
   env?: Record<string, string>;
   startTimeoutMs?: number;
+  /**
+   * Serve an existing (migrated) database instead of a fresh one, e.g. a second process on the
+   * first one's database, or a restart after a crash. It is not seeded and stop() does not drop it.
+   */
+  databaseUrl?: string;
 }
 
 export async function startTestServer(options: TestServerOptions = {}): Promise<TestServer> {
-  const database = await createTestDatabase();
+  const database = options.databaseUrl
+    ? { url: options.databaseUrl, drop: async () => {} }
+    : await createTestDatabase();
   let child: ChildProcess | undefined;
   try {
-    if (options.seed ?? true) {
+    if (!options.databaseUrl && (options.seed ?? true)) {
       const handle = openDatabase(database.url, { max: 2 });
       try {
         await seedDemo(handle.db);
@@ -89,6 +100,13 @@ export async function startTestServer(options: TestServerOptions = {}): Promise<
       url,
       databaseUrl: database.url,
       output: () => output,
+      pid: running.pid!,
+      kill: (signal = 'SIGKILL') =>
+        new Promise<void>((resolve) => {
+          if (running.exitCode !== null || running.signalCode !== null) return resolve();
+          running.once('exit', () => resolve());
+          running.kill(signal);
+        }),
       stop: () =>
         (stopped ??= (async () => {
           await terminate(running);
