@@ -21,6 +21,7 @@ import { postgresRateLimitStores, type RateLimitStores } from './http/rate-limit
 import { createLogger, type Logger } from './log';
 import { mailRouters, MailService } from './mail/index';
 import { teamRoutes } from './teams/routes';
+import { worksheetServiceRouters, type WorksheetServiceDeps } from './worksheets/index';
 
 export interface AppDeps {
   db: Database;
@@ -48,6 +49,10 @@ export interface AppDeps {
    * queued but not delivered; server/main.ts passes a started one (`startMail()`).
    */
   mail?: MailService;
+  /** Evaluation pool and caches of the worksheet service (default: one per app, threads on first use). */
+  evaluator?: WorksheetServiceDeps['evaluator'];
+  /** Throttling of unknown/revoked published-link tokens. */
+  publicRateLimit?: WorksheetServiceDeps['publicRateLimit'];
 }
 
 export const sessionCookieName = 'spreadproof.sid';
@@ -57,9 +62,9 @@ export const sessionCookieName = 'spreadproof.sid';
  * the registry that test/server/authorization-matrix.test.ts checks.
  */
 function apiRouters(
-  deps: RouterDeps & { passport: ReturnType<typeof createPassport>; rateLimit?: AuthRateLimit; mail: MailService },
+  deps: RouterDeps & { passport: ReturnType<typeof createPassport>; rateLimit?: AuthRateLimit; mail: MailService } & Omit<WorksheetServiceDeps, keyof RouterDeps>,
 ): ApiRouter[] {
-  return [healthRoutes(deps), authRoutes(deps), teamRoutes(deps), ...mailRouters(deps)];
+  return [healthRoutes(deps), authRoutes(deps), teamRoutes(deps), ...worksheetServiceRouters(deps), ...mailRouters(deps)];
 }
 
 /** The Content-Security-Policy the client is built to satisfy: nothing inline but styles, nothing remote. */
@@ -138,6 +143,8 @@ export function createApp(deps: AppDeps): express.Express {
     rateLimit: deps.authRateLimit,
     rateLimitStores: deps.rateLimitStores ?? postgresRateLimitStores(deps.db, deps.sessionSecret),
     mail: deps.mail ?? new MailService({ db: deps.db, logger }),
+    evaluator: deps.evaluator,
+    publicRateLimit: deps.publicRateLimit,
   })) {
     if (!router.mountPath.startsWith('/api/')) throw new Error(`API router mounted outside /api: ${router.mountPath}`);
     assertAllDeclared(router);

@@ -78,9 +78,11 @@ export class EvaluationPool<T = unknown, R = unknown> {
     const maxThreads = options.maxThreads ?? envNumber('EVAL_THREADS') ?? Math.max(2, os.availableParallelism());
     this.piscina = new Piscina({
       filename: workerFile instanceof URL ? workerFile.href : workerFile,
-      minThreads: 1,
+      // All threads start with the pool and stay: a worker's start-up (loading the engine) costs
+      // far more than an evaluation, and the pool itself is created on first use.
+      minThreads: maxThreads,
       maxThreads,
-      idleTimeout: 60_000,
+      idleTimeout: 10 * 60_000,
       // Workers inherit the parent's execArgv (tsx's loader), so they run TypeScript too.
       resourceLimits: { maxOldGenerationSizeMb: this.memoryLimitMb, maxYoungGenerationSizeMb: 64 },
     });

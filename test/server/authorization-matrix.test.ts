@@ -13,6 +13,7 @@ import { hashPassword } from '../../server/auth/password';
 import { ApiRouter, assertAllDeclared, publicRoute, routeRegistry, type RouteDefinition } from '../../server/http/route';
 import { createLogger } from '../../server/log';
 import { Client, openTestApp, testPassword, uniqueEmail, type AppUnderTest } from './support';
+import { addWorksheetFixture, worksheetExpectations, worksheetPathValues, type WorksheetMatrixValues } from './worksheets-matrix';
 
 const callers = ['owner', 'editor', 'reviewer', 'viewer', 'non-member', 'signed-out'] as const;
 type Caller = (typeof callers)[number];
@@ -25,10 +26,14 @@ interface Fixture {
   /** An account outside the team, for "add member". */
   newcomerEmail: string;
   emails: Record<Exclude<Caller, 'signed-out'>, string>;
+  /** Worksheet-service objects of the team (see worksheets-matrix.ts). */
+  worksheet?: WorksheetMatrixValues;
 }
 
 interface Expectation {
   body?: (fixture: Fixture, caller: Caller) => object;
+  /** Query string appended to the path, for routes that name their objects there. */
+  query?: (fixture: Fixture) => string;
   expect: Statuses;
 }
 
@@ -69,12 +74,13 @@ const expectations: Record<string, Expectation> = {
   },
   'PATCH /api/teams/:teamId/members/:userId': { body: () => ({ role: 'reviewer' }), expect: teamAtLeast('owner', 200) },
   'DELETE /api/teams/:teamId/members/:userId': { expect: teamAtLeast('owner', 204) },
+  ...worksheetExpectations,
 };
 
 const key = (route: RouteDefinition) => `${route.method} ${route.path}`;
 
 describe('authorization matrix: every registered route × every role', function () {
-  this.timeout(120_000);
+  this.timeout(900_000);
   let harness: AppUnderTest;
   let passwordHash: string;
 
@@ -108,16 +114,22 @@ describe('authorization matrix: every registered route × every role', function 
       { teamId: team.id, userId: people.viewer.id, role: 'viewer' },
       { teamId: team.id, userId: target.id, role: 'viewer' },
     ]);
-    return {
+    const fixture: Fixture = {
       teamId: team.id,
       targetUserId: target.id,
       newcomerEmail: newcomer.email,
       emails: Object.fromEntries(Object.entries(people).map(([role, p]) => [role, p.email])) as Fixture['emails'],
     };
+    fixture.worksheet = await addWorksheetFixture(db, fixture);
+    return fixture;
   }
 
   function fillPath(path: string, fixture: Fixture): string {
-    const values: Record<string, string> = { teamId: fixture.teamId, userId: fixture.targetUserId };
+    const values: Record<string, string> = {
+      teamId: fixture.teamId,
+      userId: fixture.targetUserId,
+      ...(fixture.worksheet ? worksheetPathValues(fixture.worksheet) : {}),
+    };
     return path.replace(/:(\w+)/g, (_, name: string) => {
       if (!values[name]) throw new Error(`The matrix has no value for the path parameter :${name} (${path}).`);
       return values[name];
@@ -162,7 +174,7 @@ describe('authorization matrix: every registered route × every role', function 
         if (caller === 'signed-out') await client.refreshToken();
         else await client.signIn(fixture.emails[caller]);
 
-        const path = fillPath(route.path, fixture);
+        const path = fillPath(route.path, fixture) + (expectation.query?.(fixture) ?? '');
         const body = expectation.body?.(fixture, caller);
         const method = route.method.toLowerCase() as 'get' | 'post' | 'put' | 'patch' | 'delete';
         let request = client.agent[method](path);
