@@ -121,7 +121,8 @@ describe('evaluate: determinism and hashing', function () {
   });
 });
 
-describe('evaluate: bad input gives typed errors naming the step and the field', () => {
+describe('evaluate: bad input gives typed errors naming the step and the field', function () {
+  this.timeout(30_000);
   it('a structurally invalid document throws WorksheetError listing the fields', () => {
     expect(() => evaluate({ format: 'spreadproof.worksheet', version: 1, steps: [] })).to.throw(WorksheetError, /title/);
     try {
@@ -242,7 +243,8 @@ describe('evaluate: bad input gives typed errors naming the step and the field',
   });
 });
 
-describe('evaluate: normality verdicts, summaries, result shape', () => {
+describe('evaluate: normality verdicts, summaries, result shape', function () {
+  this.timeout(30_000);
   // Strongly skewed data (invented): Shapiro-Wilk rejects normality.
   const skewed = [0.1, 0.1, 0.2, 0.2, 0.2, 0.3, 0.3, 0.4, 0.5, 0.7, 0.9, 1.4, 2.2, 3.9, 7.5];
   it('a rejecting normality check becomes a warning with the robust alternative on the steps using the same data', () => {
@@ -309,7 +311,8 @@ describe('evaluate: normality verdicts, summaries, result shape', () => {
 
 });
 
-describe('CLI: npm run evaluate -- <worksheet.json> [--data <file> ...]', () => {
+describe('CLI: npm run evaluate -- <worksheet.json> [--data <file> ...]', function () {
+  this.timeout(30_000);
   it('prints results JSON and exits 0 for a good worksheet', () => {
     const out = runCli([path.join(examplesDir, PLAIN_EXAMPLE)]);
     expect(out.code).to.equal(0);

@@ -15,7 +15,8 @@ const sampleArb = fc
   .filter((xs) => new Set(xs).size > 2);
 const levelArb = fc.double({ min: 0.5, max: 0.999, noNaN: true });
 
-describe('properties of the sigma intervals (fast-check)', () => {
+describe('properties of the sigma intervals (fast-check)', function () {
+  this.timeout(60_000);
   it('the chi-square and Bonett intervals contain s² (two-sided, levels ≥ 0.5)', () => {
     fc.assert(fc.property(sampleArb, levelArb, (xs, level) => {
       const s = Sample.of(xs);

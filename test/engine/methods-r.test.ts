@@ -69,7 +69,8 @@ function groupsOf(input: Any): { label: string; sample: Sample }[] {
   return [...map].map(([label, values]) => ({ label, sample: Sample.of(values) }));
 }
 
-describe(`methods against R (${fixture.R}; car ${fixture.packages.car}, nortest ${fixture.packages.nortest})`, () => {
+describe(`methods against R (${fixture.R}; car ${fixture.packages.car}, nortest ${fixture.packages.nortest})`, function () {
+  this.timeout(60_000);
   after(() => {
     const lines = [...worst].map(([name, w]) => `      ${name}: worst ${(w.rel / EPS).toFixed(1)} eps (${w.rel.toExponential(2)}), tolerance ${w.n} eps`);
     console.log(`\n      achieved relative error against R:\n${lines.join('\n')}`);
