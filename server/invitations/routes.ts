@@ -133,8 +133,13 @@ async function join(tx: Transaction, invitation: InvitationRow, userId: string):
 
 export function invitationRoutes(deps: RouterDeps & { mail: MailService }): ApiRouter[] {
   const { mail } = deps;
-  const inviteLimiter = mailRateLimiter(mail.limits.invitationsPerUser, byUser, 'invitations');
-  const tokenLimiter = mailRateLimiter(mail.limits.tokenUsePerAddress, byAddress, 'attempts with invitation links');
+  const inviteLimiter = mailRateLimiter(mail.limits.invitationsPerUser, byUser, 'invitations', deps.rateLimitStores?.('invitations-per-user'));
+  const tokenLimiter = mailRateLimiter(
+    mail.limits.tokenUsePerAddress,
+    byAddress,
+    'attempts with invitation links',
+    deps.rateLimitStores?.('invitation-links-per-address'),
+  );
 
   const byTeam = new ApiRouter('/api/teams/:teamId/invitations', deps)
     .get(

@@ -1,6 +1,6 @@
 /** Rate limiters of the mail-sending and token routes, answering in the API's error shape. */
 import type { Request, RequestHandler } from 'express';
-import rateLimit, { ipKeyGenerator } from 'express-rate-limit';
+import rateLimit, { ipKeyGenerator, type Store } from 'express-rate-limit';
 import { HttpError, sendError } from '../http/errors';
 import type { RateLimit } from './service';
 
@@ -15,8 +15,10 @@ export const byBodyEmail = (req: Request) => {
   return typeof email === 'string' && email.trim() !== '' ? `email:${email.trim().toLowerCase()}` : byAddress(req);
 };
 
-export function mailRateLimiter(options: RateLimit, key: (req: Request) => string, what: string): RequestHandler {
+/** `store`: shared counters (PostgreSQL, from RouterDeps.rateLimitStores); absent → per-process memory. */
+export function mailRateLimiter(options: RateLimit, key: (req: Request) => string, what: string, store?: Store): RequestHandler {
   return rateLimit({
+    store,
     windowMs: options.windowMs,
     limit: options.limit,
     standardHeaders: 'draft-7',

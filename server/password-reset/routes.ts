@@ -70,9 +70,20 @@ async function sendResetLink(mail: MailService, email: string): Promise<void> {
 
 export function passwordResetRoutes(deps: RouterDeps & { mail: MailService }): ApiRouter {
   const { mail } = deps;
-  const perAddress = mailRateLimiter(mail.limits.resetPerAddress, byAddress, 'password-reset requests');
-  const perEmail = mailRateLimiter(mail.limits.resetPerEmail, byBodyEmail, 'password-reset requests for this address');
-  const tokenLimiter = mailRateLimiter(mail.limits.tokenUsePerAddress, byAddress, 'attempts with password-reset links');
+  const stores = deps.rateLimitStores;
+  const perAddress = mailRateLimiter(mail.limits.resetPerAddress, byAddress, 'password-reset requests', stores?.('reset-requests-per-address'));
+  const perEmail = mailRateLimiter(
+    mail.limits.resetPerEmail,
+    byBodyEmail,
+    'password-reset requests for this address',
+    stores?.('reset-requests-per-email'),
+  );
+  const tokenLimiter = mailRateLimiter(
+    mail.limits.tokenUsePerAddress,
+    byAddress,
+    'attempts with password-reset links',
+    stores?.('reset-links-per-address'),
+  );
 
   return new ApiRouter('/api/password-reset', deps)
     .post(

@@ -14,6 +14,7 @@ import { ApiRouter, assertAllDeclared, publicRoute, routeRegistry, type RouteDef
 import { createLogger } from '../../server/log';
 import { Client, openTestApp, testPassword, uniqueEmail, type AppUnderTest } from './support';
 import { addWorksheetFixture, worksheetExpectations, worksheetPathValues, type WorksheetMatrixValues } from './worksheets-matrix';
+import { addMailFixture, mailExpectations, mailPathValues, type MailMatrixValues } from './mail-matrix';
 
 const callers = ['owner', 'editor', 'reviewer', 'viewer', 'non-member', 'signed-out'] as const;
 type Caller = (typeof callers)[number];
@@ -28,6 +29,8 @@ interface Fixture {
   emails: Record<Exclude<Caller, 'signed-out'>, string>;
   /** Worksheet-service objects of the team (see worksheets-matrix.ts). */
   worksheet?: WorksheetMatrixValues;
+  /** Invitations and a reset link of the team (see mail-matrix.ts). */
+  mail?: MailMatrixValues;
 }
 
 interface Expectation {
@@ -75,6 +78,7 @@ const expectations: Record<string, Expectation> = {
   'PATCH /api/teams/:teamId/members/:userId': { body: () => ({ role: 'reviewer' }), expect: teamAtLeast('owner', 200) },
   'DELETE /api/teams/:teamId/members/:userId': { expect: teamAtLeast('owner', 204) },
   ...worksheetExpectations,
+  ...mailExpectations,
 };
 
 const key = (route: RouteDefinition) => `${route.method} ${route.path}`;
@@ -121,6 +125,7 @@ describe('authorization matrix: every registered route × every role', function 
       emails: Object.fromEntries(Object.entries(people).map(([role, p]) => [role, p.email])) as Fixture['emails'],
     };
     fixture.worksheet = await addWorksheetFixture(db, fixture);
+    fixture.mail = await addMailFixture(db, fixture);
     return fixture;
   }
 
@@ -129,6 +134,7 @@ describe('authorization matrix: every registered route × every role', function 
       teamId: fixture.teamId,
       userId: fixture.targetUserId,
       ...(fixture.worksheet ? worksheetPathValues(fixture.worksheet) : {}),
+      ...(fixture.mail ? mailPathValues(fixture.mail) : {}),
     };
     return path.replace(/:(\w+)/g, (_, name: string) => {
       if (!values[name]) throw new Error(`The matrix has no value for the path parameter :${name} (${path}).`);
