@@ -1,6 +1,7 @@
 import type { ErrorRequestHandler, RequestHandler } from 'express';
 import type { Logger } from 'pino';
 import { z } from 'zod';
+import { databaseUnavailableMessage, isDatabaseUnavailable } from './database-errors';
 
 export interface FieldProblem {
   field: string;
@@ -79,6 +80,12 @@ export function errorHandler(logger: Logger): ErrorRequestHandler {
     }
     if (typeof parserError.status === 'number' && parserError.status >= 400 && parserError.status < 500 && parserError.expose) {
       sendError(res, new HttpError(parserError.status, 'bad_request', 'The request could not be read.'));
+      return;
+    }
+    if (isDatabaseUnavailable(error)) {
+      logger.warn({ method: req.method, path: req.path, reason: (error as Error).message }, 'database unavailable');
+      res.setHeader('Retry-After', '5');
+      sendError(res, new HttpError(503, 'database_unavailable', databaseUnavailableMessage));
       return;
     }
     logger.error({ err: error, method: req.method, path: req.path }, 'unhandled error');
