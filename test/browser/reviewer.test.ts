@@ -95,6 +95,8 @@ describe('Reviewer: compares two revisions and approves one', function () {
       });
       await page.goto(`/compare?from=${fork.revisionId}&to=${fork.revisionId}`);
       await page.getByTestId('same-revision').waitFor();
+      await page.getByRole('link', { name: /History of/ }).waitFor();
+      await page.getByTestId('pick-to').getByText('Revision 1').waitFor();
       expect(compareCalls).to.equal(0);
       await screenshot('reviewer-2-same-revision');
 
@@ -117,6 +119,8 @@ describe('Reviewer: compares two revisions and approves one', function () {
       await panel.getByTestId('verdict-comment').fill('99 % limits agree with the handbook table.');
       await panel.getByTestId('send-verdict').click();
       await panel.getByTestId('verdict-notice').waitFor();
+      // The form folds away; a new verdict is one click.
+      await panel.getByTestId('new-verdict').waitFor();
       await panel.locator('[data-testid="verdict"][data-verdict="approved"]').waitFor();
       // The badge on the compared revision's card.
       await page.locator('[data-testid="verdict-badge"][data-verdict="approved"]').first().waitFor();
@@ -141,6 +145,7 @@ describe('Reviewer: compares two revisions and approves one', function () {
       await signInThroughPage(page, people.reviewer, `/compare?from=${sheet.revisionId}&to=${fork.revisionId}`);
       await page.getByTestId('result-changes').waitFor();
       await page.getByTestId('review-panel').waitFor();
+      await page.getByTestId('pick-from').getByText('Revision 2').waitFor();
       const overflow = await page.evaluate('document.documentElement.scrollWidth - window.innerWidth');
       expect(overflow, 'the page does not scroll sideways').to.be.at.most(0);
       await screenshot('reviewer-phone-dark-compare');
@@ -150,9 +155,11 @@ describe('Reviewer: compares two revisions and approves one', function () {
 
 /** The element's background differs from its row's: the new value is visibly marked. */
 async function expectHighlighted(page: Page, mark: import('playwright-core').Locator): Promise<void> {
-  const colours = (await mark.evaluate(
-    `(el) => [getComputedStyle(el).backgroundColor, getComputedStyle(el.closest('tr')).backgroundColor]`,
-  )) as [string, string];
+  // (The test code is type-checked without the DOM library, hence the loose types in the page function.)
+  const colours = await mark.evaluate((el: any) => {
+    const style = (globalThis as any).getComputedStyle;
+    return [style(el).backgroundColor as string, style(el.closest('tr')).backgroundColor as string] as const;
+  });
   expect(colours[0], 'highlight colour').to.not.match(/rgba\(0, 0, 0, 0\)|transparent/);
   expect(colours[0]).to.not.equal(colours[1]);
   void page;

@@ -81,6 +81,11 @@ export class ReviewPanel {
 
   protected readonly myId = computed(() => this.session.user()?.id ?? null);
   protected readonly isAuthor = computed(() => this.revision().author.id === this.myId());
+  /** My verdict that counts on this revision, if I gave one. */
+  protected readonly myVerdict = computed(() => latestVerdicts(this.verdicts()).find((v) => v.reviewer.id === this.myId()) ?? null);
+  /** After a verdict the form folds away; a new verdict (which supersedes) is one click. */
+  protected readonly verdictFormOpen = signal(false);
+  protected readonly showVerdictForm = computed(() => this.myVerdict() === null || this.verdictFormOpen());
   protected readonly hasReviewRole = computed(() => roleAtLeast(this.myRole(), 'reviewer'));
   protected readonly canReview = computed(() => this.hasReviewRole() && !this.isAuthor());
   protected readonly canRequest = computed(() => roleAtLeast(this.myRole(), 'editor'));
@@ -129,9 +134,11 @@ export class ReviewPanel {
     effect(() => {
       this.revisionId();
       this.verdictForm.reset({ verdict: '', comment: '' });
+      this.verdictFormOpen.set(false);
       this.verdictNotice.set(null);
       this.verdictError.set(null);
       this.requestNotice.set(null);
+      this.verdictFormOpen.set(false);
     });
   }
 
@@ -155,6 +162,7 @@ export class ReviewPanel {
     try {
       await this.api.giveVerdict(revision.id, verdict, comment.trim(), revision.contentHash);
       this.verdictForm.reset({ verdict: '', comment: '' });
+      this.verdictFormOpen.set(false);
       this.verdictNotice.set(
         verdict === 'approved'
           ? `You approved revision ${revision.number} (content ${shortHash(revision.contentHash)}).`
