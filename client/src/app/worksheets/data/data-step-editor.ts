@@ -120,7 +120,14 @@ export class DataStepEditor {
       notes.push(`${answer.dataset.skippedCount} cell${answer.dataset.skippedCount === 1 ? '' : 's'} could not be read and will be left out (${first.join('; ')}${answer.dataset.skippedCount > 3 ? '; …' : ''}).`);
     }
     this.notes.set(notes);
-    this.emitParams({ origin: 'dataset', datasetId: answer.dataset.id, fileName: answer.dataset.name.slice(0, 260) });
+    // The file's column names go into the step too, so later steps can offer them before the
+    // first evaluation; units are added to these entries.
+    this.emitParams({
+      origin: 'dataset',
+      datasetId: answer.dataset.id,
+      fileName: answer.dataset.name.slice(0, 260),
+      columns: answer.dataset.columns.map((c) => ({ name: c.name })),
+    });
   }
 
   // ------------------------------------------------------------------------------------------
@@ -228,10 +235,10 @@ export class DataStepEditor {
     const params = this.datasetParams();
     if (!params) return;
     const trimmed = unit.trim().slice(0, 40);
-    const others = (params.columns ?? []).filter((c) => c.name !== name);
-    const columns = trimmed ? [...others, { name, unit: trimmed }] : others;
-    const { columns: _old, ...rest } = params;
-    this.emitParams(columns.length > 0 ? { ...rest, columns } : rest);
+    const known = params.columns ?? [];
+    const entry = trimmed ? { name, unit: trimmed } : { name };
+    const columns = known.some((c) => c.name === name) ? known.map((c) => (c.name === name ? entry : c)) : [...known, entry];
+    this.emitParams({ ...params, columns });
   }
 
   // ------------------------------------------------------------------------------------------

@@ -84,10 +84,11 @@ function sizeText(bytes: number): string {
       }
 
       @if (error(); as message) {
-        <p class="sp-alert error" role="alert" data-testid="upload-error">
+        <div class="sp-alert error" role="alert" data-testid="upload-error">
           <mat-icon aria-hidden="true">error</mat-icon>
-          <span>{{ message }}</span>
-        </p>
+          <span class="error-text">{{ message }}</span>
+          <button matButton type="button" (click)="error.set(null)">Dismiss</button>
+        </div>
       }
     </div>
   `,
@@ -100,6 +101,8 @@ function sizeText(bytes: number): string {
     .options summary:focus-visible { outline: 2px solid var(--mat-sys-primary); outline-offset: 2px; }
     .options-row { display: grid; grid-template-columns: repeat(auto-fill, minmax(160px, 1fr)); gap: 8px; margin-top: 8px; }
     .options-row mat-form-field { width: 100%; }
+    .sp-alert.error { align-items: center; }
+    .error-text { flex: 1; }
     .progress-text { display: flex; align-items: center; justify-content: space-between; gap: 8px; font: var(--mat-sys-body-small); flex-wrap: wrap; }
   `,
   changeDetection: ChangeDetectionStrategy.OnPush,

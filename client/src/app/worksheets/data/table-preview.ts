@@ -59,10 +59,9 @@ type Cell = number | string | null;
     :host { display: block; min-width: 0; }
     .scroller { overflow: auto; max-height: 420px; border: 1px solid var(--mat-sys-outline-variant); border-radius: var(--mat-sys-corner-small); }
     .scroller:focus-visible { outline: 2px solid var(--mat-sys-primary); outline-offset: 2px; }
-    .preview { width: 100%; }
+    .preview { width: 100%; --mat-table-row-item-container-height: 32px; --mat-table-header-container-height: 40px; }
     th.mat-mdc-header-cell { white-space: nowrap; font: var(--mat-sys-label-large); }
     td.mat-mdc-cell { white-space: nowrap; font-family: var(--sp-font-mono); font-size: 13px; padding: 0 12px; }
-    .mat-mdc-row, .mat-mdc-header-row { height: 32px; }
     .row-number { color: var(--mat-sys-on-surface-variant); }
     .type { margin-left: 4px; font: var(--mat-sys-label-small); color: var(--mat-sys-on-surface-variant); }
     td.blank { background: var(--mat-sys-surface-container-high); }

@@ -113,7 +113,7 @@ export function splitRows(text: string, delimiter: Delimiter): string[][] {
   return rows;
 }
 
-/** The delimiter of pasted text: tabs (spreadsheets), then semicolons, commas, bars, spaces. */
+/** The delimiter of pasted text: tabs (spreadsheets), then semicolons, commas, bars, spaces; else one column. */
 export function detectDelimiter(text: string): Delimiter {
   const sample = text.split('\n').slice(0, 20).join('\n');
   if (sample.includes('\t')) return '\t';
@@ -130,7 +130,8 @@ export function detectDelimiter(text: string): Delimiter {
   }
   if (count('|') >= lines) return '|';
   if (/\S +\S/.test(sample)) return ' ';
-  return ',';
+  // No delimiter at all: one column (a tab never splits it, and decimal commas stay readable).
+  return '\t';
 }
 
 /** Parses pasted or typed text into inline columns. */

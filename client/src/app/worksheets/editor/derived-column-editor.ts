@@ -55,7 +55,8 @@ type DerivedStep = StepOfKind<'derived-column'>;
         }
         <p class="sp-muted hint">
           Columns: @for (c of columns(); track c.name; let last = $last) {<code>{{ c.name }}</code>{{ last ? '' : ', ' }}} @empty {none known yet}.
-          Use + − * / ^, parentheses and functions such as sqrt, abs, log, exp, round.
+          Use + − * / ^, parentheses and functions such as sqrt, abs, log10, round; col("name with spaces") for other names;
+          convert(x, "mm", "um") for units.
         </p>
       </div>
     </div>

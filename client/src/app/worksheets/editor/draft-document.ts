@@ -61,9 +61,9 @@ export interface DataStepInfo {
 }
 
 /**
- * Columns of the data and derived-column steps before `index`, from the document alone (inline
- * columns; dataset columns known only by their units) — `knownColumns` adds what the last
- * evaluation reported (dataset columns), which wins when present.
+ * Columns of the data and derived-column steps before `index`. Typed-in columns come from the
+ * document; for uploaded files and derived columns `knownColumns` (what the last evaluation
+ * reported) wins, and the document's column names are the fallback.
  */
 export function dataStepsBefore(
   document: Pick<Worksheet, 'steps'>,
@@ -82,10 +82,21 @@ export function dataStepsBefore(
       if (p.origin === 'summary') {
         summaryGroups = p.groups.map((g, i) => g.label ?? `group ${i + 1}`);
         columns = [];
-      } else if (columns.length === 0 && p.origin === 'inline') {
+      } else if (p.origin === 'inline') {
+        // Typed-in columns are known from the draft itself; the last evaluation may be older.
         columns = p.columns.map((c) => (c.type === 'number' && c.unit ? { name: c.name, type: c.type, unit: c.unit } : { name: c.name, type: c.type }));
-      } else if (columns.length === 0 && p.origin === 'dataset') {
-        columns = (p.columns ?? []).map((c) => (c.unit ? { name: c.name, type: 'number' as const, unit: c.unit } : { name: c.name, type: 'number' as const }));
+      } else if (p.origin === 'dataset' && p.columns && p.columns.length > 0) {
+        // The step names the file's columns (from the upload, or those with units); types and
+        // any other columns from the last evaluation.
+        const reported = new Map(columns.map((c) => [c.name, c]));
+        const named = new Set(p.columns.map((c) => c.name));
+        columns = [
+          ...p.columns.map((c): ColumnInfo => {
+            const type = reported.get(c.name)?.type ?? 'number';
+            return type === 'number' && c.unit ? { name: c.name, type, unit: c.unit } : { name: c.name, type };
+          }),
+          ...columns.filter((c) => !named.has(c.name)),
+        ];
       }
     } else if (step.kind === 'derived-column' && columns.length === 0) {
       const from = byId.get(step.params.step);

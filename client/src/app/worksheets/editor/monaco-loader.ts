@@ -17,10 +17,14 @@ export type MonacoApi = typeof Monaco;
 /** Language id of derived-column expressions (a restricted math.js syntax). */
 export const EXPRESSION_LANGUAGE = 'spreadproof-expression';
 
-/** The functions the engine allows in expressions (shared/engine/derived.ts), for completion and colouring. */
+/**
+ * The functions the engine allows in expressions: ALLOWED_FUNCTIONS of shared/engine/derived.ts,
+ * repeated here because importing that module would bring math.js into the editor's chunk.
+ */
 export const EXPRESSION_FUNCTIONS = [
-  'abs', 'sqrt', 'cbrt', 'exp', 'log', 'log10', 'log2', 'pow', 'round', 'floor', 'ceil', 'sign',
-  'sin', 'cos', 'tan', 'asin', 'acos', 'atan', 'atan2', 'min', 'max', 'mod', 'hypot',
+  'abs', 'acos', 'asin', 'atan', 'atan2', 'cbrt', 'ceil', 'col', 'convert', 'cos', 'cosh', 'cube', 'exp', 'expm1',
+  'fix', 'floor', 'hypot', 'log', 'log10', 'log1p', 'log2', 'max', 'min', 'mod', 'nthRoot', 'pow', 'round', 'sign',
+  'sin', 'sinh', 'sqrt', 'square', 'tan', 'tanh',
 ];
 
 let loading: Promise<MonacoApi> | null = null;
@@ -62,13 +66,14 @@ function registerExpressionLanguage(monaco: MonacoApi): void {
   monaco.languages.register({ id: EXPRESSION_LANGUAGE });
   monaco.languages.setMonarchTokensProvider(EXPRESSION_LANGUAGE, {
     functions: EXPRESSION_FUNCTIONS,
-    constants: ['pi', 'e'],
+    constants: ['pi', 'e', 'tau'],
     tokenizer: {
       root: [
         [/[a-zA-Z_][\w]*(?=\s*\()/, { cases: { '@functions': 'keyword', '@default': 'invalid' } }],
         [/[a-zA-Z_][\w]*/, { cases: { '@constants': 'constant', '@default': 'variable' } }],
         [/\d*\.\d+([eE][-+]?\d+)?|\d+([eE][-+]?\d+)?/, 'number'],
-        [/[+\-*/^%]/, 'operator'],
+        [/"[^"]*"/, 'string'],
+        [/[+\-*/^%<>=!?:]/, 'operator'],
         [/[()]/, '@brackets'],
         [/,/, 'delimiter'],
         [/\s+/, 'white'],

@@ -1,5 +1,5 @@
 import { ChangeDetectionStrategy, Component, inject, signal } from '@angular/core';
-import { FormControl, ReactiveFormsModule, Validators } from '@angular/forms';
+import { FormControl, FormGroup, ReactiveFormsModule, Validators } from '@angular/forms';
 import { MatButton } from '@angular/material/button';
 import { MAT_DIALOG_DATA, MatDialogActions, MatDialogContent, MatDialogRef, MatDialogTitle } from '@angular/material/dialog';
 import { MatError, MatFormField, MatHint, MatLabel } from '@angular/material/form-field';
@@ -24,14 +24,14 @@ export type SaveDialogResult = { saved: Revision } | { conflict: HeadMovedError 
   imports: [ReactiveFormsModule, MatDialogTitle, MatDialogContent, MatDialogActions, MatButton, MatFormField, MatLabel, MatHint, MatError, MatInput, MatIcon, MatProgressBar],
   template: `
     <h2 mat-dialog-title>Save a new revision</h2>
-    <form (ngSubmit)="save()" novalidate>
+    <form [formGroup]="form" (ngSubmit)="save()" novalidate>
       <mat-dialog-content>
         <p class="sp-muted intro">
           Revision {{ data.baseNumber }} stays as it is; the draft becomes revision {{ data.baseNumber + 1 }} if nobody saved in between.
         </p>
         <mat-form-field appearance="outline" class="message">
           <mat-label>What changed?</mat-label>
-          <textarea matInput [formControl]="message" rows="3" cdkFocusInitial data-testid="save-message"></textarea>
+          <textarea matInput formControlName="message" rows="3" cdkFocusInitial data-testid="save-message"></textarea>
           <mat-hint align="end">{{ message.value.length }} / 500</mat-hint>
           @if (message.hasError('maxlength')) {
             <mat-error>A message has at most 500 characters.</mat-error>
@@ -63,6 +63,7 @@ export class SaveDialog {
   protected readonly data = inject<SaveDialogData>(MAT_DIALOG_DATA);
   protected readonly ref = inject<MatDialogRef<SaveDialog, SaveDialogResult>>(MatDialogRef);
   protected readonly message = new FormControl('', { nonNullable: true, validators: [Validators.maxLength(500)] });
+  protected readonly form = new FormGroup({ message: this.message });
   protected readonly saving = signal(false);
   protected readonly error = signal<string | null>(null);
 

@@ -13,7 +13,7 @@ import { firstValueFrom } from 'rxjs';
 import { DataStepEditor } from '../data/data-step-editor';
 import { StepFindings } from '../results/step-findings';
 import { CONFIDENCE_KINDS, SOURCE_KINDS, stepKindInfo } from '../results/step-kinds';
-import { stepLabel } from '../results/step-summary';
+import { describeStep, stepLabel } from '../results/step-summary';
 import { ConfidenceWhatIf } from './confidence-what-if';
 import { ConfirmDialog, ConfirmDialogData } from './confirm-dialog';
 import { DerivedColumnEditor } from './derived-column-editor';
@@ -76,6 +76,7 @@ export class StepCard {
   private readonly dialog = inject(MatDialog);
   private readonly heading = viewChild.required<ElementRef<HTMLElement>>('heading');
 
+  protected readonly titles = this.draft.titles;
   protected readonly info = computed(() => stepKindInfo(this.step().kind));
   protected readonly label = computed(() => stepLabel(this.step(), this.info().label));
   protected readonly result = computed(() => this.draft.resultOf(this.step().id));
@@ -83,7 +84,11 @@ export class StepCard {
     const error = this.result()?.error;
     return error ? { field: error.field, message: error.message } : null;
   });
-  protected readonly settingsOpen = signal(true);
+  /** Steps not in the saved revision yet, and steps with an error, show their settings; others a summary. */
+  private readonly isNew = computed(() => !(this.draft.base()?.document.steps.some((s) => s.id === this.step().id) ?? false));
+  private readonly userOpen = signal<boolean | null>(null);
+  protected readonly settingsOpen = computed(() => this.userOpen() ?? (this.isNew() || this.result()?.status === 'error'));
+  protected readonly summary = computed(() => describeStep(this.step(), this.titles()));
   protected readonly whatIfActive = signal(false);
   protected readonly canEdit = this.draft.canEdit;
   protected readonly hasSource = computed(() => SOURCE_KINDS.has(this.step().kind));
@@ -97,7 +102,6 @@ export class StepCard {
     const data = this.dataSteps().find((d) => d.id === source.step);
     return data?.columns.find((c) => c.name === source.column)?.unit;
   });
-  protected readonly titles = this.draft.titles;
 
   /** The state of the result shown: saved, an unsaved preview, or a preview of an older draft. */
   protected readonly resultState = computed<'saved' | 'preview' | 'updating' | 'none'>(() => {
@@ -167,6 +171,10 @@ export class StepCard {
     const element = this.heading().nativeElement;
     element.focus({ preventScroll: true });
     element.scrollIntoView({ block: 'start', behavior: 'smooth' });
+  }
+
+  protected toggleSettings(): void {
+    this.userOpen.set(!this.settingsOpen());
   }
 
   protected update(step: Step): void {

@@ -98,7 +98,7 @@ export class VegaPlot {
 function responsive(spec: Record<string, unknown>): Record<string, unknown> {
   const composite = ['hconcat', 'vconcat', 'concat', 'facet', 'repeat'].some((key) => key in spec);
   if (composite || typeof spec['width'] !== 'number') return spec;
-  return { ...spec, width: 'container', autosize: { type: 'fit-x', contains: 'padding' } };
+  return { ...spec, width: 'container' };
 }
 
 /** Resolves a CSS colour token (Material tokens are `light-dark()` expressions) to an rgb() string. */
