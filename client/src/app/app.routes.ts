@@ -65,6 +65,41 @@ export const routes: Routes = [
     title: 'Published worksheet · Spreadproof',
     loadComponent: () => import('./published/published-view').then((m) => m.PublishedView),
   },
+  {
+    // Opened from the link in an invitation message (token in the fragment); signed in or not.
+    path: 'invitation',
+    title: 'Invitation · Spreadproof',
+    loadComponent: () => import('./invitations/invitation-accept/invitation-accept').then((m) => m.InvitationAccept),
+  },
+  {
+    path: 'account/notifications',
+    title: 'Notifications · Spreadproof',
+    canActivate: [signedInGuard],
+    loadComponent: () => import('./account/notification-settings/notification-settings').then((m) => m.NotificationSettings),
+  },
+  {
+    path: 'account/reset-password',
+    title: 'Choose a new password · Spreadproof',
+    loadComponent: () => import('./account/reset-request/reset-request').then((m) => m.ResetRequest),
+  },
+  {
+    // Opened from the link in a password-reset message (token in the fragment).
+    path: 'account/new-password',
+    title: 'Choose a new password · Spreadproof',
+    loadComponent: () => import('./account/new-password/new-password').then((m) => m.NewPassword),
+  },
+  {
+    path: 'dev/mailbox',
+    title: 'Mailbox · Spreadproof',
+    canActivate: [signedInGuard],
+    loadComponent: () => import('./mailbox/mailbox-page/mailbox-page').then((m) => m.MailboxPage),
+  },
+  {
+    path: 'dev/mailbox/:messageId',
+    title: 'Mailbox · Spreadproof',
+    canActivate: [signedInGuard],
+    loadComponent: () => import('./mailbox/mailbox-page/mailbox-page').then((m) => m.MailboxPage),
+  },
   // Later features (worksheets, history, compare, review, published view) add their routes here.
   {
     path: '**',

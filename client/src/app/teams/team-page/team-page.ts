@@ -29,6 +29,7 @@ import { Session } from '../../core/session';
 import { TeamDetail, TeamMember, Teams } from '../teams';
 import { ArchivedWorksheets } from '../archived-worksheets/archived-worksheets';
 import { AuditTrail } from '../audit-trail/audit-trail';
+import { TeamInvitations } from '../../invitations/team-invitations/team-invitations';
 
 /** One team: its members and their roles; owners add members, change roles and remove members. */
 @Component({
@@ -48,6 +49,7 @@ import { AuditTrail } from '../audit-trail/audit-trail';
     MatProgressBar,
     ArchivedWorksheets,
     AuditTrail,
+    TeamInvitations,
   ],
   templateUrl: './team-page.html',
   styleUrl: './team-page.scss',
