@@ -9,6 +9,7 @@ import type { StepResult } from '../result';
 import { runCapability } from './capability';
 import type { RunContext, StepData } from './context';
 import { runData } from './data';
+import { runDerivedColumn } from './derived-column';
 import { runGroupComparison } from './group-comparison';
 import { runNormalityCheck, type NormalityVerdict } from './normality-check';
 import { runSampleSizePlan } from './sample-size-plan';
@@ -21,11 +22,12 @@ export type RunnerOutput = StepData | NormalityVerdict | null | void;
 export type Runner<K extends StepKind> = (step: StepOfKind<K>, ctx: RunContext, result: StepResult) => RunnerOutput;
 
 /**
- * Derived-column and note steps join when their building blocks (shared/engine/derived.ts and
- * note.ts) are in the tree; until then evaluate() reports those steps as not yet available.
+ * Note steps join when their building block (shared/engine/note.ts) is in the tree; until then
+ * evaluate() reports them as not yet available.
  */
 export const RUNNERS: { [K in StepKind]?: Runner<K> } = {
   data: runData,
+  'derived-column': runDerivedColumn,
   'spread-summary': runSpreadSummary,
   'sigma-interval': runSigmaInterval,
   'target-test': runTargetTest,
