@@ -104,6 +104,16 @@ describe('Colleague: reads a revision at 99 % and forks it', function () {
       expect(await page.getByTestId('revision-title').innerText()).to.equal('Gear diameter spread at 99 %');
       await screenshot('colleague-4-fork-at-99');
 
+      // Ask the team's reviewer to look at the fork.
+      const panel = page.getByTestId('review-panel');
+      await panel.getByTestId('ask-review').click();
+      await panel.getByTestId('reviewer-select').click();
+      await page.getByRole('option', { name: /Priya Raman/ }).click();
+      await panel.getByLabel('Message (optional)').fill('Same data, read at 99 %.');
+      await panel.getByRole('button', { name: 'Send request' }).click();
+      await panel.locator('[data-testid="review-request"]').getByText('Priya Raman').waitFor();
+      await screenshot('colleague-5-review-requested');
+
       // What was stored: a new worksheet whose origin is the analyst's revision, at 99 % throughout.
       const forkRevisionId = new URL(page.url()).pathname.split('/').pop()!;
       const tomas = new ApiSession(server!.url);
@@ -114,6 +124,10 @@ describe('Colleague: reads a revision at 99 % and forks it', function () {
       const steps = stored.revision.document.steps as { id: string; params: Record<string, unknown> }[];
       expect(steps.find((s) => s.id === 'sigma')!.params['levels']).to.deep.equal([0.99]);
       expect(steps.find((s) => s.id === 'target')!.params['alpha']).to.equal(0.01);
+      const reviews = await tomas.get<any>(`/api/revisions/${forkRevisionId}/reviews`);
+      expect(reviews.requests).to.have.length(1);
+      expect(reviews.requests[0].reviewer.name).to.equal('Priya Raman');
+      expect(reviews.requests[0].status).to.equal('open');
       // The analyst's worksheet is untouched.
       const original = await tomas.get<any>(`/api/revisions/${sheet.revisionId}`);
       expect(original.isHead).to.equal(true);

@@ -50,6 +50,9 @@ describe('Reviewer: compares two revisions and approves one', function () {
       document: gearWorksheet(data, 0.99, title),
     });
     fork = { worksheetId: forked.worksheet.id, revisionId: forked.head.id, contentHash: forked.head.contentHash };
+    const team = await tomas.get<any>(`/api/teams/${sheet.teamId}`);
+    const priyaId = team.members.find((m: { email: string }) => m.email === people.reviewer).userId;
+    await tomas.post(`/api/revisions/${fork.revisionId}/review-requests`, { reviewerId: priyaId, message: 'Same data, read at 99 %.' });
     browser = await launchChromium();
   });
 
@@ -60,7 +63,16 @@ describe('Reviewer: compares two revisions and approves one', function () {
 
   it('sees the changed interval highlighted, is stopped on bad input, and approves the fork', async () => {
     await withPage(browser!, { baseURL: server!.url, viewport: desktop }, async ({ page, screenshot }) => {
-      await signInThroughPage(page, people.reviewer, `/revisions/${fork.revisionId}`);
+      await signInThroughPage(page, people.reviewer);
+
+      // The request waits in the reviewer's list, reached from the account menu.
+      await page.getByTestId('user-menu').click();
+      await page.getByTestId('reviews-link').click();
+      const request = page.getByRole('link', { name: 'Gear diameter spread at 99 %, revision 1' });
+      await request.waitFor();
+      await screenshot('reviewer-0-requests');
+      await request.click();
+      await page.waitForURL(`**/revisions/${fork.revisionId}#review`);
       await page.getByTestId('fork-origin').waitFor();
 
       // From the fork's revision to the comparison with its origin.
@@ -132,6 +144,9 @@ describe('Reviewer: compares two revisions and approves one', function () {
       expect(stored.reviews[0].reviewer.name).to.equal('Priya Raman');
       expect(stored.reviews[0].contentHash).to.equal(fork.contentHash);
       expect((await priya.get<any>(`/api/revisions/${sheet.revisionId}/reviews`)).reviews).to.have.length(0);
+      // The verdict answered the request.
+      expect(stored.requests[0].status).to.equal('answered');
+      expect(stored.requests[0].verdictId).to.equal(stored.reviews[0].id);
 
       // The history of the fork shows the verdict badge on that revision.
       await page.goto(`/worksheets/${fork.worksheetId}/history`);

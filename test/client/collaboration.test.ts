@@ -175,10 +175,17 @@ describe('client: audit trail words', () => {
   it('names known actions and shows short details', () => {
     expect(auditActionLabel('link.revoke')).to.equal('revoked a public link');
     expect(auditActionLabel('something.new')).to.equal('something.new');
-    const pairs = auditDetailPairs({ revisionNumber: 3, contentHash: 'a'.repeat(64), nested: { x: 1 }, message: 'm'.repeat(100) });
+    const pairs = auditDetailPairs({
+      revisionNumber: 3,
+      contentHash: 'a'.repeat(64),
+      nested: { x: 1 },
+      revisionId: '78960fcc-d25d-4d5f-92dd-b73442e7bd13',
+      message: 'm'.repeat(100),
+    });
     expect(pairs).to.deep.equal([
       { key: 'revision number', value: '3' },
       { key: 'content hash', value: 'a'.repeat(10) },
+      { key: 'revision id', value: '78960fcc' },
       { key: 'message', value: `${'m'.repeat(77)}…` },
     ]);
     expect(auditDetailPairs(null)).to.deep.equal([]);

@@ -31,6 +31,7 @@ export function auditDetailPairs(details: Record<string, unknown> | null | undef
     let text = String(value);
     // Hashes and ids are long; their start identifies them well enough in a list.
     if (/^[0-9a-f]{40,}$/i.test(text)) text = text.slice(0, 10);
+    else if (/^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i.test(text)) text = text.slice(0, 8);
     if (text.length > 80) text = `${text.slice(0, 77)}…`;
     pairs.push({ key: key.replace(/([a-z])([A-Z])/g, '$1 $2').toLowerCase(), value: text });
   }

@@ -2,11 +2,10 @@ import { Clipboard } from '@angular/cdk/clipboard';
 import { DOCUMENT } from '@angular/common';
 import { httpResource } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
-import { MatButton, MatIconButton } from '@angular/material/button';
+import { MatButton } from '@angular/material/button';
 import { MAT_DIALOG_DATA, MatDialogActions, MatDialogClose, MatDialogContent, MatDialogTitle } from '@angular/material/dialog';
 import { MatIcon } from '@angular/material/icon';
 import { MatProgressBar } from '@angular/material/progress-bar';
-import { MatTooltip } from '@angular/material/tooltip';
 import { toApiError } from '../../core/api-error';
 import { formatDateTime } from '../history/revision-labels';
 import { Link, WorksheetApi } from '../worksheet-api';
@@ -24,7 +23,7 @@ export interface PublishDialogData {
  */
 @Component({
   selector: 'sp-publish-dialog',
-  imports: [MatDialogTitle, MatDialogContent, MatDialogActions, MatDialogClose, MatButton, MatIconButton, MatIcon, MatProgressBar, MatTooltip],
+  imports: [MatDialogTitle, MatDialogContent, MatDialogActions, MatDialogClose, MatButton, MatIcon, MatProgressBar],
   templateUrl: './publish-dialog.html',
   styleUrl: './publish-dialog.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
