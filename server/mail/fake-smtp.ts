@@ -58,7 +58,18 @@ export function sanitizeMailHtml(html: string): string {
     },
     allowedSchemes: ['http', 'https', 'mailto'],
     allowedSchemesByTag: { img: ['data'] },
-    transformTags: { a: sanitizeHtml.simpleTransform('a', { target: '_blank', rel: 'noopener noreferrer' }) },
+    // The document's title and head are not content; the body becomes a div that keeps its style.
+    nonTextTags: ['style', 'script', 'textarea', 'option', 'noscript', 'title', 'head'],
+    transformTags: {
+      '*': (tagName, attribs) => {
+        const kept = { ...attribs };
+        // Styles stay, except those that would fetch something (background images, imports).
+        if (kept.style && /url\s*\(|@import|expression\s*\(/i.test(kept.style)) delete kept.style;
+        if (tagName === 'a') return { tagName, attribs: { ...kept, target: '_blank', rel: 'noopener noreferrer' } };
+        if (tagName === 'body') return { tagName: 'div', attribs: kept };
+        return { tagName, attribs: kept };
+      },
+    },
   });
 }
 

@@ -274,6 +274,10 @@ describe('local mail server and outbox sender', function () {
     expect(clean).to.contain('src="data:image/png;base64,AAAA"');
     expect(clean).to.contain('href="https://spreadproof.example.test/r"');
     expect(clean).to.contain('rel="noopener noreferrer"');
+    const page = sanitizeMailHtml(
+      '<!doctype html><html><head><title>Subject line</title></head><body style="color:#123"><p style="background:url(https://x.example/p.gif)">text</p></body></html>',
+    );
+    expect(page).to.equal('<div style="color:#123"><p>text</p></div>');
   });
 });
 

@@ -1,6 +1,6 @@
 import { httpResource } from '@angular/common/http';
-import { ChangeDetectionStrategy, Component, computed, inject, input, signal } from '@angular/core';
-import { NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
+import { ChangeDetectionStrategy, Component, computed, inject, input, signal, viewChild } from '@angular/core';
+import { FormGroupDirective, NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
 import { MatButton, MatIconButton } from '@angular/material/button';
 import { MatOption } from '@angular/material/core';
 import { MatError, MatFormField, MatHint, MatLabel } from '@angular/material/form-field';
@@ -28,6 +28,7 @@ export class TeamInvitations {
   private readonly api = inject(InvitationsApi);
 
   readonly teamId = input.required<string>();
+  private readonly formDirective = viewChild.required(FormGroupDirective);
 
   protected readonly list = httpResource<{ items: TeamInvitation[] }>(() => InvitationsApi.teamUrl(this.teamId()));
   protected readonly items = computed(() => (this.list.hasValue() ? this.list.value().items : []));
@@ -60,7 +61,8 @@ export class TeamInvitations {
     const { email, role } = this.form.getRawValue();
     try {
       const invitation = await this.api.invite(this.teamId(), email.trim(), role);
-      this.form.reset({ email: '', role });
+      // resetForm also clears the "submitted" state, so the emptied field shows no error.
+      this.formDirective().resetForm({ email: '', role });
       this.notice.set(`Invitation sent to ${invitation.email} (${roleLabel(invitation.role).toLowerCase()}).`);
       this.list.reload();
     } catch (error) {
