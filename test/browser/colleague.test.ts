@@ -67,6 +67,13 @@ describe('Colleague: reads a revision at 99 % and forks it', function () {
       expect(await page.getByTestId('revision-title').innerText()).to.equal('Gear diameter spread');
       await screenshot('colleague-2-revision-as-saved');
 
+      // Re-check against today's engine: the stored results are reproduced byte for byte.
+      await page.getByTestId('recheck').click();
+      const recheck = page.getByTestId('recheck-result');
+      await recheck.waitFor();
+      expect(await recheck.getAttribute('data-matches')).to.equal('true');
+      expect(await recheck.innerText()).to.contain('Reproduced');
+
       // A typed level outside (0, 100 %) is refused on the page, before any evaluation.
       let evaluations = 0;
       page.on('request', (request) => {

@@ -150,6 +150,12 @@ describe('Owner: publishes a revision and revokes the link', function () {
       await page.getByTestId('archived-worksheets').waitFor();
       await screenshot('owner-9-team-audit');
     });
+    await withPage(browser!, { baseURL: server!.url, viewport: phone, colorScheme: 'dark' }, async ({ page, screenshot }) => {
+      await signInThroughPage(page, people.analyst, `/teams/${sheet.teamId}`);
+      await page.getByTestId('audit-trail').locator('[data-testid="audit-event"]').first().waitFor();
+      await expectNoSideways(page);
+      await screenshot('owner-10-team-phone-dark');
+    });
   });
 });
 
