@@ -7,7 +7,7 @@
 //
 // The time limit counts from the moment a worker starts the task (the worker reports it through a
 // MessagePort), not from submission, so a busy pool does not make small evaluations time out.
-// Waiting in the queue has its own, longer bound.
+// Waiting in the queue has its own, longer bound (longer still before the first worker is up).
 import os from 'node:os';
 import { MessageChannel } from 'node:worker_threads';
 import { Piscina } from 'piscina';
@@ -69,6 +69,8 @@ export class EvaluationPool<T = unknown, R = unknown> {
   readonly memoryLimitMb: number;
   readonly queueLimitMs: number;
   private readonly piscina: Piscina;
+  /** Set once a worker has started a task: until then, waiting is thread start-up, not overload. */
+  private warm = false;
 
   constructor(options: EvaluationPoolOptions = {}) {
     this.timeLimitMs = options.timeLimitMs ?? envNumber('EVAL_TIME_LIMIT_MS') ?? 10_000;
@@ -104,11 +106,17 @@ export class EvaluationPool<T = unknown, R = unknown> {
     let timedOut = false;
     let queuedOut = false;
     let runTimer: NodeJS.Timeout | undefined;
-    const queueTimer = setTimeout(() => {
-      queuedOut = true;
-      abort.abort();
-    }, this.queueLimitMs);
+    // Loading the engine in a fresh worker can take long on a busy machine; the queue bound is
+    // for overload of warm workers, so it waits for the first start (with a generous cap).
+    const queueTimer = setTimeout(
+      () => {
+        queuedOut = true;
+        abort.abort();
+      },
+      this.warm ? this.queueLimitMs : Math.max(this.queueLimitMs, 5 * 60_000),
+    );
     port1.once('message', () => {
+      this.warm = true;
       clearTimeout(queueTimer);
       runTimer = setTimeout(() => {
         timedOut = true;

@@ -27,11 +27,12 @@ async function saveThrough(server: TestServer, document: object) {
 }
 
 describe('determinism across server processes', function () {
-  this.timeout(120_000);
+  this.timeout(400_000);
   let servers: TestServer[] = [];
 
   before(async () => {
-    servers = await Promise.all([startTestServer(), startTestServer()]);
+    // Start-up loads the whole engine; on a busy machine that takes a while.
+    servers = await Promise.all([startTestServer({ startTimeoutMs: 180_000 }), startTestServer({ startTimeoutMs: 180_000 })]);
   });
   after(async () => {
     await Promise.all(servers.map((s) => s.stop()));
