@@ -95,18 +95,7 @@ function runStep(step: Step, ctx: RunContext): { result: StepResult; output: Ste
   const title = stepTitle(step);
   const result = emptyResult(step.id, step.kind, title);
   try {
-    const runner = RUNNERS[step.kind] as Runner<typeof step.kind> | undefined;
-    if (!runner) {
-      return {
-        result: errorResult(step.id, step.kind, title, {
-          code: 'internal',
-          stepId: step.id,
-          field: 'kind',
-          message: `Step "${step.id}", kind: ${step.kind} steps are not available in engine ${ENGINE_VERSION} yet.`,
-        }),
-        output: null,
-      };
-    }
+    const runner = RUNNERS[step.kind] as Runner<typeof step.kind>;
     const output = runner(step as never, ctx, result) ?? null;
     // Every number in a result must be finite; canonicalJson refuses anything else. A failure here
     // is a defect of the engine, reported as such rather than shown as a number.

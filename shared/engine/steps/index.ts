@@ -12,6 +12,7 @@ import { runData } from './data';
 import { runDerivedColumn } from './derived-column';
 import { runGroupComparison } from './group-comparison';
 import { runNormalityCheck, type NormalityVerdict } from './normality-check';
+import { runNote } from './note';
 import { runSampleSizePlan } from './sample-size-plan';
 import { runSigmaInterval } from './sigma-interval';
 import { runSpreadSummary } from './spread-summary';
@@ -21,11 +22,7 @@ import { runTwoSampleRatio } from './two-sample-ratio';
 export type RunnerOutput = StepData | NormalityVerdict | null | void;
 export type Runner<K extends StepKind> = (step: StepOfKind<K>, ctx: RunContext, result: StepResult) => RunnerOutput;
 
-/**
- * Note steps join when their building block (shared/engine/note.ts) is in the tree; until then
- * evaluate() reports them as not yet available.
- */
-export const RUNNERS: { [K in StepKind]?: Runner<K> } = {
+export const RUNNERS: { [K in StepKind]: Runner<K> } = {
   data: runData,
   'derived-column': runDerivedColumn,
   'spread-summary': runSpreadSummary,
@@ -36,6 +33,7 @@ export const RUNNERS: { [K in StepKind]?: Runner<K> } = {
   'normality-check': runNormalityCheck,
   'sample-size-plan': runSampleSizePlan,
   capability: runCapability,
+  note: runNote,
 };
 
 /**
