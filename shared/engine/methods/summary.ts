@@ -229,6 +229,21 @@ export function spreadSummary(sample: Sample): SpreadSummary {
   };
 }
 
+/** Σ(x − c)^4 (compensated): the one power sum Bonett's interval needs, in a lean loop. */
+export function fourthPowerSum(x: Float64Array, c: number): number {
+  let s = 0;
+  let comp = 0;
+  for (let i = 0; i < x.length; i++) {
+    const d = x[i] - c;
+    const d2 = d * d;
+    const d4 = d2 * d2;
+    const t = s + d4;
+    comp += s >= d4 ? s - t + d4 : d4 - t + s;
+    s = t;
+  }
+  return s + comp;
+}
+
 /**
  * Σ(x − c)^3 and Σ(x − c)^4 about c (compensated), for skewness, kurtosis and Bonett's interval.
  */

@@ -21,7 +21,7 @@
  */
 import { chisqQuantile, chisqQuantileUpper, normQuantileUpper } from '../distributions/index';
 import { MethodInputError, requireProbability } from './errors';
-import { centralPowerSums, type Sample } from './summary';
+import { fourthPowerSum, type Sample } from './summary';
 
 export type Sides = 'two-sided' | 'lower' | 'upper';
 
@@ -139,7 +139,7 @@ export function bonettBasis(sample: Sample): BonettBasis {
     }
     trimmedMean = m0 + (r + rc) / kept;
   }
-  const { s4 } = centralPowerSums(sample.values, trimmedMean);
+  const s4 = fourthPowerSum(sample.values, trimmedMean);
   const kurtosis = (n * s4) / (sumSquares * sumSquares);
   return { n, variance, kurtosis, trimmedMean, trimmedCount };
 }
