@@ -7,7 +7,7 @@ import { Client } from './support';
 import { boreDocument, createBoreWorksheet, expectError, openServiceApp, teamOfRoles, type ServiceHarness, type TeamOfRoles } from './worksheets-support';
 
 describe('audit trail', function () {
-  this.timeout(60_000);
+  this.timeout(180_000);
   let h: ServiceHarness;
   let t: TeamOfRoles;
 
@@ -66,7 +66,7 @@ describe('audit trail', function () {
 });
 
 describe('immutable records in the database', function () {
-  this.timeout(60_000);
+  this.timeout(180_000);
   let h: ServiceHarness;
   let raw: pg.Client;
   let ids: { revision: string; review: string; worksheet: string };

@@ -17,7 +17,8 @@ export default async function slowTask(envelope: WorkerEnvelope<PoolTask>) {
   }
   if (title.startsWith('hog')) {
     const keep: number[][] = [];
-    for (;;) keep.push(Array.from({ length: 1e5 }, (_, i) => i * 1.5));
+    // Plain JS arrays live on the heap the limit applies to (typed arrays would not).
+    for (;;) keep.push(new Array(1e6).fill(keep.length + 0.5));
   }
   return reply;
 }

@@ -10,7 +10,7 @@ let unique = 0;
 const draft = (title: string) => ({ document: boreDocument({ title: `${title} #${++unique} ${process.pid}` }) });
 
 describe('evaluation in worker threads (API)', function () {
-  this.timeout(60_000);
+  this.timeout(180_000);
 
   describe('a long evaluation does not hold up other requests', () => {
     let h: ServiceHarness;
@@ -82,7 +82,7 @@ describe('evaluation in worker threads (API)', function () {
     });
 
     it('stops an evaluation at the memory limit with 422 evaluation_memory, then serves the next one', async () => {
-      const h = await openServiceApp({}, { workerFile, maxThreads: 1, memoryLimitMb: 96 });
+      const h = await openServiceApp({}, { workerFile, maxThreads: 1, memoryLimitMb: 96, timeLimitMs: 120_000 });
       try {
         const t = await teamOfRoles(h, 'Memory Team');
         const { worksheetId } = await createBoreWorksheet(t.clients.editor, t.teamId);

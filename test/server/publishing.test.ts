@@ -10,7 +10,7 @@ import { Client } from './support';
 import { boreDocument, createBoreWorksheet, expectError, openServiceApp, teamOfRoles, type ServiceHarness, type TeamOfRoles } from './worksheets-support';
 
 describe('published links', function () {
-  this.timeout(60_000);
+  this.timeout(180_000);
   let h: ServiceHarness;
   let t: TeamOfRoles;
 

@@ -5,7 +5,7 @@ import { boreDocument, createBoreWorksheet, expectError, openServiceApp, teamOfR
 import { reviewEvents, type ReviewRequestedEvent, type ReviewVerdictEvent } from '../../server/reviews/events';
 
 describe('reviews API', function () {
-  this.timeout(60_000);
+  this.timeout(180_000);
   let h: ServiceHarness;
   let t: TeamOfRoles;
 

@@ -18,7 +18,7 @@ function upload(client: Client, teamId: string, bytes: Buffer | string, name: st
 const boresCsv = 'run,deviation,operator\n1,2.1,A\n2,1.8,B\n3,2.4,A\n4,2.0,B\n5,1.7,A\n6,2.3,B\n';
 
 describe('uploads API', function () {
-  this.timeout(120_000);
+  this.timeout(240_000);
   let h: ServiceHarness;
   let t: TeamOfRoles;
 

@@ -12,7 +12,7 @@ import { seedDemoWorksheets } from '../../server/seed/worksheets';
 import { createTestDatabase, type TestDatabase } from '../support/db';
 
 describe('demo seed: worksheets', function () {
-  this.timeout(60_000);
+  this.timeout(180_000);
   let database: TestDatabase;
   let handle: DatabaseHandle;
   const linkSecret = randomBytes(16).toString('hex');

@@ -7,7 +7,7 @@ import { listExamples } from '../../server/worksheets/examples';
 import { boreDocument, createBoreWorksheet, expectError, openServiceApp, teamOfRoles, type ServiceHarness, type TeamOfRoles } from './worksheets-support';
 
 describe('worksheets API', function () {
-  this.timeout(60_000);
+  this.timeout(180_000);
   let h: ServiceHarness;
   let t: TeamOfRoles;
 
