@@ -117,6 +117,28 @@ describe('browser: sign in, home, team page, sign out', function () {
     });
   });
 
+  it('sends the user to sign-in when the session ends, and back to the same page after signing in', async () => {
+    await withPage(browser, { baseURL: server.url }, async ({ page, context, allowFailedResponse }) => {
+      await page.goto('/sign-in');
+      await signIn(page, owner.email, demoPassword);
+      const teamLink = page.getByRole('link', { name: new RegExp(demoTeam) });
+      await teamLink.waitFor();
+      const teamPath = await teamLink.getAttribute('href');
+      expect(teamPath).to.match(/^\/teams\//);
+
+      // The server-side session is gone (expired, or ended in another tab): the next API call
+      // answers 401 and the app asks the user to sign in again.
+      allowFailedResponse(/^\/api\//, 401);
+      await context.clearCookies();
+      await teamLink.click();
+      await page.waitForURL((url) => url.pathname === '/sign-in' && url.searchParams.get('returnUrl') === teamPath);
+      await signIn(page, owner.email, demoPassword);
+      await page.waitForURL((url) => url.pathname === teamPath);
+      await page.getByTestId('team-name').waitFor();
+      expect(await page.getByTestId('team-name').textContent()).to.equal(demoTeam);
+    });
+  });
+
   it('shows field errors before sending an empty or invalid form', async () => {
     await withPage(browser, { baseURL: server.url }, async ({ page }) => {
       await page.goto('/sign-in');
