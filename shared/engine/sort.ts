@@ -11,7 +11,7 @@ const LEAF = 48;
 /** Below this length the built-in typed-array sort is faster than the radix setup. */
 const SMALL = 256;
 
-/** The first digit is the top 16 key bits: sign, 11 exponent bits, 4 fraction bits. */
+/** Width of the first digit. */
 const TOP_BITS = 16;
 const TOP_BUCKETS = 1 << TOP_BITS;
 
@@ -28,15 +28,18 @@ const LITTLE_ENDIAN = new Uint8Array(new Uint32Array([1]).buffer)[0] === 1;
  * bit of a non-negative double and inverting all bits of a negative one maps doubles to unsigned
  * 64-bit keys in the same order (M. Herf, "Radix tricks", 2001). The keys are never stored; the
  * digits are read from the original bits. The sort is most-significant-digit first: one pass on
- * the top 16 bits (sign, exponent, 4 fraction bits) splits the data by magnitude, then each
- * bucket is split on the next 6 to 11 bits (fewer for small buckets) until it holds at most
- * `LEAF` values, which insertion sort finishes. Every bucket after the first digit holds values
- * of one sign, so -0 and +0 never meet in a comparison. A digit on which all values of a bucket
+ * the top 16 bits (sign, exponent, 4 fraction bits) splits the data by magnitude; when one
+ * bucket would hold most of the data (readings of one sign and exponent), the split is taken
+ * instead on the 16 bits below the highest bit on which the values differ. Each bucket is then
+ * split on the next 6 to 11 bits (fewer for small buckets) until it holds at most `LEAF`
+ * values, which insertion sort finishes. Every bucket after the first digit holds values of one sign, so -0 and +0 never
+ * meet in a comparison. A digit on which all values of a bucket
  * agree costs a counting pass but no move, and a bucket of equal values stops at once, so ties
  * and narrow ranges (quantised gauge readings) stay cheap. Real data need two or three passes
  * where a least-significant-digit sort needs six; the worst case (values differing only in the
- * last fraction bits) is O(64/6 · n). Memory: the result plus one scratch buffer as large as the
- * largest first-digit bucket. Deterministic.
+ * last fraction bits) is O(64/6 · n). Memory: the result plus one scratch buffer (and its 16-bit
+ * digits) as large as the largest first-digit bucket, which for real data is a small fraction of
+ * n. Deterministic.
  */
 export function sortFloat64(values: Float64Array): Float64Array {
   const n = values.length;
@@ -51,24 +54,45 @@ export function sortFloat64(values: Float64Array): Float64Array {
   }
 
   const words = new Uint32Array(values.buffer, values.byteOffset, n * 2);
-  const offsets = new Uint32Array(TOP_BUCKETS + 1);
+  // Pass 1: refuse NaN, count the first digit (the top 16 key bits: sign, exponent, 4 fraction
+  // bits), and note which key bits differ at all.
+  const firstFlip = words[1] >> 31;
+  const firstHi = (words[1] ^ (firstFlip | 0x80000000)) >>> 0;
+  const firstLo = (words[0] ^ firstFlip) >>> 0;
+  let diffHi = 0;
+  let diffLo = 0;
+  let offsets = new Uint32Array(TOP_BUCKETS + 1);
   for (let i = 0; i < n; i++) {
     const hi = words[2 * i + 1];
+    const lo = words[2 * i];
     // NaN: exponent all ones and a non-zero fraction.
-    if ((hi & 0x7ff00000) === 0x7ff00000 && ((hi & 0x000fffff) !== 0 || words[2 * i] !== 0)) throw nanError(i);
-    offsets[((hi ^ ((hi >> 31) | 0x80000000)) >>> 16) + 1]++;
+    if ((hi & 0x7ff00000) === 0x7ff00000 && ((hi & 0x000fffff) !== 0 || lo !== 0)) throw nanError(i);
+    const flip = hi >> 31;
+    const keyHi = hi ^ (flip | 0x80000000);
+    diffHi |= keyHi ^ firstHi;
+    diffLo |= (lo ^ flip) ^ firstLo;
+    offsets[(keyHi >>> 16) + 1]++;
   }
-  let largest = 0;
-  for (let b = 1; b <= TOP_BUCKETS; b++) {
-    if (offsets[b] > largest) largest = offsets[b];
-    offsets[b] += offsets[b - 1];
+  if (diffHi === 0 && diffLo === 0) {
+    out.set(values);
+    return out;
   }
+  let low = 48;
+  let width = TOP_BITS;
+  let largest = prefixSums(offsets);
+  const top = diffHi !== 0 ? 63 - Math.clz32(diffHi) : 31 - Math.clz32(diffLo);
+  if (largest * 2 > n && top < 63) {
+    // One bucket holds most values (readings of one sign and magnitude, such as gauge data):
+    // split instead on the 16 bits from the highest bit on which the values differ.
+    low = Math.max(0, top - (TOP_BITS - 1));
+    width = top - low + 1;
+    offsets = new Uint32Array((1 << width) + 1);
+    countDigits(words, n, low, width, offsets);
+    largest = prefixSums(offsets);
+  }
+  const buckets = 1 << width;
   // offsets[b] is now the start of bucket b; scatter with a moving cursor per bucket.
-  const cursor = offsets.slice(0, TOP_BUCKETS);
-  for (let i = 0; i < n; i++) {
-    const hi = words[2 * i + 1];
-    out[cursor[(hi ^ ((hi >> 31) | 0x80000000)) >>> 16]++] = values[i];
-  }
+  scatterDigits(words, values, out, low, width, offsets.slice(0, buckets));
 
   const scratchLength = largest > LEAF ? largest : 0;
   const state: SortState = {
@@ -77,15 +101,71 @@ export function sortFloat64(values: Float64Array): Float64Array {
     digits: new Uint16Array(scratchLength),
     base: 0,
   };
-  for (let b = 0; b < TOP_BUCKETS; b++) {
+  // With the sign bit in the first digit, buckets below the middle hold the negative values;
+  // otherwise every value has the sign of the first.
+  const signInDigit = low + width === 64;
+  for (let b = 0; b < buckets; b++) {
     const start = offsets[b];
     const length = offsets[b + 1] - start;
     if (length < 2) continue;
     state.base = start;
-    // Bucket index >= 0x8000 means the sign bit of the key is set: non-negative values.
-    sortBucket(state, out, start, length, TOP_BITS, b < 0x8000);
+    sortBucket(state, out, start, length, 64 - low, signInDigit ? b < buckets >>> 1 : firstFlip !== 0);
   }
   return out;
+}
+
+/** Turns counts (at index digit + 1) into bucket starts; returns the largest count. */
+function prefixSums(offsets: Uint32Array): number {
+  let largest = 0;
+  for (let b = 1; b < offsets.length; b++) {
+    if (offsets[b] > largest) largest = offsets[b];
+    offsets[b] += offsets[b - 1];
+  }
+  return largest;
+}
+
+// The first digit, `width` bits of the key from key bit `low` up, in three loops by where the
+// digit lies, so that the hot loops carry no branch on it.
+
+function countDigits(words: Uint32Array, n: number, low: number, width: number, offsets: Uint32Array): void {
+  const mask = (1 << width) - 1;
+  if (low >= 32) {
+    const shift = low - 32;
+    for (let i = 0; i < n; i++) {
+      const hi = words[2 * i + 1];
+      offsets[(((hi ^ ((hi >> 31) | 0x80000000)) >>> shift) & mask) + 1]++;
+    }
+  } else if (low + width <= 32) {
+    for (let i = 0; i < n; i++) offsets[(((words[2 * i] ^ (words[2 * i + 1] >> 31)) >>> low) & mask) + 1]++;
+  } else {
+    const up = 32 - low;
+    for (let i = 0; i < n; i++) {
+      const hi = words[2 * i + 1];
+      const flip = hi >> 31;
+      offsets[((((hi ^ (flip | 0x80000000)) << up) | ((words[2 * i] ^ flip) >>> low)) & mask) + 1]++;
+    }
+  }
+}
+
+function scatterDigits(words: Uint32Array, values: Float64Array, out: Float64Array, low: number, width: number, cursor: Uint32Array): void {
+  const n = values.length;
+  const mask = (1 << width) - 1;
+  if (low >= 32) {
+    const shift = low - 32;
+    for (let i = 0; i < n; i++) {
+      const hi = words[2 * i + 1];
+      out[cursor[((hi ^ ((hi >> 31) | 0x80000000)) >>> shift) & mask]++] = values[i];
+    }
+  } else if (low + width <= 32) {
+    for (let i = 0; i < n; i++) out[cursor[((words[2 * i] ^ (words[2 * i + 1] >> 31)) >>> low) & mask]++] = values[i];
+  } else {
+    const up = 32 - low;
+    for (let i = 0; i < n; i++) {
+      const hi = words[2 * i + 1];
+      const flip = hi >> 31;
+      out[cursor[(((hi ^ (flip | 0x80000000)) << up) | ((words[2 * i] ^ flip) >>> low)) & mask]++] = values[i];
+    }
+  }
 }
 
 interface SortState {

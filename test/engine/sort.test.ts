@@ -31,7 +31,8 @@ const anyDouble = fc.oneof(
 const lengths = fc.oneof(fc.integer({ min: 0, max: 300 }), fc.integer({ min: 200, max: 6000 }));
 
 describe('sortFloat64', () => {
-  it('orders any doubles exactly as Float64Array.prototype.sort (fast-check)', () => {
+  it('orders any doubles exactly as Float64Array.prototype.sort (fast-check)', function () {
+    this.timeout(120_000);
     fc.assert(
       fc.property(lengths, fc.array(anyDouble, { minLength: 1, maxLength: 64 }), fc.nat(), (n, pool, seed) => {
         // Fill n slots from a random pool and random fresh doubles, so duplicates are common.
@@ -49,7 +50,8 @@ describe('sortFloat64', () => {
     );
   });
 
-  it('orders arrays of fully random doubles (fast-check)', () => {
+  it('orders arrays of fully random doubles (fast-check)', function () {
+    this.timeout(120_000);
     fc.assert(
       fc.property(fc.float64Array({ noNaN: true, minLength: 250, maxLength: 5000 }), (values) => {
         expectSameBits(sortFloat64(values), reference(values));
@@ -58,7 +60,8 @@ describe('sortFloat64', () => {
     );
   });
 
-  it('orders values that differ only in the last fraction bits (deepest digit recursion)', () => {
+  it('orders values that differ only in the last fraction bits (deepest digit recursion)', function () {
+    this.timeout(120_000);
     for (const base of [1, -1, 1e-300, -3.5e200]) {
       const values = new Float64Array(20000);
       let s = 99;
@@ -68,6 +71,35 @@ describe('sortFloat64', () => {
         values[i] = base + (s % 5000) * ulp;
       }
       expectSameBits(sortFloat64(values), reference(values));
+    }
+  });
+
+  it('orders readings of one sign and magnitude (first digit taken where the values differ)', function () {
+    this.timeout(60_000);
+    let s = 2024;
+    const uniform = () => {
+      s = (Math.imul(s, 1664525) + 1013904223) >>> 0;
+      return (s + 0.5) / 4294967296;
+    };
+    // Gauge readings 12.5 mm ± 20 um; the same negated; and values whose varying bits start in the
+    // low word, straddle the two words, or lie in the high word just below the exponent.
+    const cases: Array<[string, () => number]> = [
+      ['gauge', () => 12.5 + 0.02 * (uniform() - 0.5)],
+      ['negative gauge', () => -12.5 - 0.02 * (uniform() - 0.5)],
+      ['low word', () => 1 + Math.floor(uniform() * 2 ** 20) * Number.EPSILON],
+      ['straddling', () => 1 + uniform() * 2 ** -12],
+      ['high word', () => 3 + uniform() * 0.5],
+      ['mostly one value', () => (uniform() < 0.9 ? 7.25 : 7.25 + uniform())],
+    ];
+    for (const [name, draw] of cases) {
+      const values = new Float64Array(30000);
+      for (let i = 0; i < values.length; i++) values[i] = draw();
+      const sorted = sortFloat64(values);
+      try {
+        expectSameBits(sorted, reference(values));
+      } catch (error) {
+        throw new Error(`${name}: ${(error as Error).message}`);
+      }
     }
   });
 
@@ -87,7 +119,8 @@ describe('sortFloat64', () => {
     expectSameBits(sortFloat64(values), reference(values));
   });
 
-  it('sorts a large normal sample (1e6 values) like the built-in sort', () => {
+  it('sorts a large normal sample (1e6 values) like the built-in sort', function () {
+    this.timeout(120_000);
     let s = 12345;
     const uniform = () => {
       s = (Math.imul(s, 1664525) + 1013904223) >>> 0;
