@@ -167,59 +167,35 @@ export interface AndersonDarling {
   n: number;
 }
 
-// ln Φ(z) and ln Φ(−z) from a single tail evaluation: with t = Φ(−|z|) (the smaller tail,
-// accurate), the two logs are ln t and ln(1 − t) = log1p(−t). Results in these two variables, so
-// the hot loop allocates nothing.
-let tailLower = 0;
-let tailUpper = 0;
-function logTails(z: number): void {
-  const a = Math.abs(z);
-  let logSmall: number;
-  let small: number;
-  if (a > 37) {
-    logSmall = logNormCdf(-a);
-    small = Math.exp(logSmall);
-  } else {
-    small = normSf(a);
-    logSmall = Math.log(small);
-  }
-  const logLarge = Math.log1p(-small);
-  if (z <= 0) {
-    tailLower = logSmall;
-    tailUpper = logLarge;
-  } else {
-    tailLower = logLarge;
-    tailUpper = logSmall;
-  }
-}
-
 /** Anderson-Darling test of sorted data with estimated mean and sd (n ≥ 8). */
 export function andersonDarling(sorted: Float64Array, mean: number, sd: number): AndersonDarling {
   const n = sorted.length;
   if (n < 8) throw new MethodInputError('insufficient-data', 'values', `Anderson-Darling needs n ≥ 8 (got n = ${n})`);
   if (!(sd > 0)) throw new MethodInputError('zero-variance', 'values', 'all values are identical; Anderson-Darling is not defined');
-  // Σ (2i − 1)[ln Φ(z_i) + ln Φ(−z_{n+1−i})] (1-based). Elements i and j = n + 1 − i are taken in
-  // pairs, so each z needs one tail evaluation and no scratch array. Neumaier-compensated sum.
+  // S = Σ (2i − 1) ln[Φ(z_i) (1 − Φ(z_{n+1−i}))] (1-based). Elements i and j = n + 1 − i are taken
+  // in pairs: one tail evaluation t = Φ(−|z|) per element gives both Φ(z) and 1 − Φ(z) (the larger
+  // of the two as 1 − t), and one logarithm per term; no scratch array. Where a product would
+  // come near underflow (|z| beyond about 26) the logs are taken separately (logNormCdf).
   let s = 0;
   let c = 0;
   for (let i = 0, j = n - 1; i <= j; i++, j--) {
-    logTails((sorted[i] - mean) / sd);
-    const li = tailLower;
-    const ui = tailUpper;
-    let term: number;
-    if (i === j) {
-      term = (2 * i + 1) * (li + ui);
-    } else {
-      logTails((sorted[j] - mean) / sd);
-      const lj = tailLower;
-      const uj = tailUpper;
-      const t1 = (2 * i + 1) * (li + uj);
-      let t = s + t1;
-      c += Math.abs(s) >= Math.abs(t1) ? s - t + t1 : t1 - t + s;
-      s = t;
-      term = (2 * j + 1) * (lj + ui);
-    }
-    const t = s + term;
+    const zi = (sorted[i] - mean) / sd;
+    const zj = (sorted[j] - mean) / sd;
+    const ti = normSf(Math.abs(zi));
+    const tj = i === j ? ti : normSf(Math.abs(zj));
+    const cdfI = zi <= 0 ? ti : 1 - ti;
+    const sfI = zi <= 0 ? 1 - ti : ti;
+    const cdfJ = zj <= 0 ? tj : 1 - tj;
+    const sfJ = zj <= 0 ? 1 - tj : tj;
+    const p1 = cdfI * sfJ;
+    let term = (2 * i + 1) * (p1 > 1e-280 ? Math.log(p1) : logNormCdf(zi) + logNormCdf(-zj));
+    let t = s + term;
+    c += Math.abs(s) >= Math.abs(term) ? s - t + term : term - t + s;
+    s = t;
+    if (i === j) break;
+    const p2 = cdfJ * sfI;
+    term = (2 * j + 1) * (p2 > 1e-280 ? Math.log(p2) : logNormCdf(zj) + logNormCdf(-zi));
+    t = s + term;
     c += Math.abs(s) >= Math.abs(term) ? s - t + term : term - t + s;
     s = t;
   }
