@@ -113,7 +113,7 @@ async function main(): Promise<void> {
   if (files.length > 0) {
     const database = await createTestDatabase();
     try {
-      await mocha('main', files, { ...process.env, DATABASE_URL: database.url, [testRunVariable]: '1' }, 20000);
+      await mocha('main', files, { ...process.env, DATABASE_URL: database.url, [testRunVariable]: '1' }, 60000);
     } finally {
       await database.drop();
     }
