@@ -421,7 +421,8 @@ function resultChanges(from: ComparableRevision, to: ComparableRevision): { resu
       const y = nb.get(path);
       const xv = x?.value ?? null;
       const yv = y?.value ?? null;
-      if (xv === yv && (x === undefined) === (y === undefined)) continue;
+      // Equal values, or "not available" on both sides (also when a table row exists on one side only).
+      if (xv === yv) continue;
       const change: ResultChange = {
         stepId: step.id,
         label,
