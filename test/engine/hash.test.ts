@@ -27,7 +27,15 @@ function shuffledCopy(value: unknown, order: number[], cursor = { i: 0 }): unkno
       [keys[i], keys[r]] = [keys[r], keys[i]];
     }
     const out: Record<string, unknown> = {};
-    for (const key of keys) out[key] = shuffledCopy((value as Record<string, unknown>)[key], order, cursor);
+    // defineProperty, not assignment: a key named "__proto__" must stay an own data property.
+    for (const key of keys) {
+      Object.defineProperty(out, key, {
+        value: shuffledCopy((value as Record<string, unknown>)[key], order, cursor),
+        enumerable: true,
+        writable: true,
+        configurable: true,
+      });
+    }
     return out;
   }
   return value;
