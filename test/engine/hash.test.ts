@@ -1,7 +1,10 @@
+import { spawnSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
+import { fileURLToPath } from 'node:url';
 import { expect } from 'chai';
 import fc from 'fast-check';
 import { canonicalHash, canonicalJson, sha256Hex } from '@shared/engine/hash';
+import { pipelineResult } from './hash-pipeline';
 
 // Reference for the canonical form: a deliberately naive serialiser that leans on the platform's
 // JSON.stringify for every primitive and for key escaping, and only adds the sorted key order.
@@ -200,5 +203,19 @@ describe('sha256Hex', () => {
     // Fixed vector so that any change of the canonical form shows up as a failing test.
     expect(canonicalJson(doc)).to.equal('{"steps":[{"id":"s1","n":10,"s":0.42}],"title":"Bore gauge repeatability"}');
     expect(canonicalHash(doc)).to.equal(nodeSha256('{"steps":[{"id":"s1","n":10,"s":0.42}],"title":"Bore gauge repeatability"}'));
+  });
+});
+
+describe('determinism across processes', () => {
+  it('gives byte-identical canonical JSON and the same SHA-256 in a fresh process', function () {
+    this.timeout(120_000);
+    const here = pipelineResult();
+    const again = pipelineResult();
+    expect(again.json).to.equal(here.json);
+    const script = fileURLToPath(new URL('./hash-pipeline.ts', import.meta.url));
+    const child = spawnSync(process.execPath, ['--import', 'tsx', script], { encoding: 'utf8', env: { ...process.env, TZ: 'Pacific/Chatham', LANG: 'de_DE.UTF-8' } });
+    expect(child.status, child.stderr).to.equal(0);
+    expect(child.stdout.trim()).to.equal(here.hash);
+    expect(here.hash).to.equal(nodeSha256(here.json));
   });
 });
