@@ -107,6 +107,7 @@ async function main(): Promise<void> {
   await typeCheck('tsconfig.server.json');
   if (clientSourcesExist()) await typeCheck(path.join('client', 'tsconfig.app.json'));
   else log('client/src/main.ts does not exist yet: client type-check skipped.');
+  if (existsSync(path.join('test', 'client', 'tsconfig.json'))) await typeCheck(path.join('test', 'client', 'tsconfig.json'));
 
   heading('Unit, engine and API suites');
   const files = testFiles('test', [path.join('test', 'browser')]);
