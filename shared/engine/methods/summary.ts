@@ -50,19 +50,17 @@ export class Sample {
   }
 
   /**
-   * Validates `values` (all finite, at least `minN` of them) and computes the moments.
+   * Validates `values` (all finite, at least `minN` of them) and computes the moments; the values
+   * are not copied (a Float64Array is used as it is and must not be changed afterwards).
    * Throws MethodInputError 'non-finite' naming the first bad position, or 'insufficient-data'.
    */
   static of(values: Float64Array | readonly number[], minN = 1, sorted?: Float64Array): Sample {
     const data = values instanceof Float64Array ? values : Float64Array.from(values);
-    for (let i = 0; i < data.length; i++) {
-      if (!Number.isFinite(data[i])) {
-        throw new MethodInputError('non-finite', 'values', `value ${i + 1} is ${data[i]}; every value must be a finite number`);
-      }
-    }
     if (data.length < minN) {
       throw new MethodInputError('insufficient-data', 'values', `needs at least ${minN} values (got ${data.length})`);
     }
+    // computeMoments reports non-finite values (its first pass sees them as a non-finite sum), so
+    // the data are read once less.
     return new Sample(data, computeMoments(data), sorted ?? null);
   }
 
@@ -95,6 +93,14 @@ export function computeMoments(x: Float64Array): Moments {
     s = t;
     if (v < min) min = v;
     if (v > max) max = v;
+  }
+  if (!Number.isFinite(s + c)) {
+    for (let i = 0; i < n; i++) {
+      if (!Number.isFinite(x[i])) {
+        throw new MethodInputError('non-finite', 'values', `value ${i + 1} is ${x[i]}; every value must be a finite number`);
+      }
+    }
+    throw new MethodInputError('non-finite', 'values', 'the values are too large: their sum overflows the floating-point range');
   }
   const m0 = (s + c) / n;
   // Pass 2: compensated Σd and Σd² about m0.
