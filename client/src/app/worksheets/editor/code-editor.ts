@@ -59,6 +59,7 @@ export class CodeEditor {
   readonly minLines = input(3);
   readonly maxLines = input(20);
   readonly lineNumbers = input(false);
+  readonly readOnly = input(false);
   readonly valueChange = output<string>();
 
   protected readonly ready = signal(false);
@@ -110,6 +111,11 @@ export class CodeEditor {
             hideCursorInOverviewRuler: true,
             scrollbar: { alwaysConsumeMouseWheel: false },
             fixedOverflowWidgets: true,
+            // Tables, notes and short expressions: no word completion popping up over the typing.
+            quickSuggestions: false,
+            wordBasedSuggestions: 'off',
+            suggestOnTriggerCharacters: false,
+            readOnly: this.readOnly(),
             accessibilitySupport: 'auto',
           });
           this.editor = editor;

@@ -130,6 +130,14 @@ export class WorksheetDraft {
 
   async load(worksheetId: string): Promise<void> {
     this.loadError.set(null);
+    if (this.worksheet()?.id !== worksheetId) {
+      // Another worksheet (a fork just made, say): show nothing of the previous one meanwhile.
+      this.document.set(null);
+      this.base.set(null);
+      this.worksheet.set(null);
+      this.restoredAt.set(null);
+      this.olderDrafts.set([]);
+    }
     try {
       const detail = await this.api.get(worksheetId);
       this.worksheet.set(detail.worksheet);

@@ -129,7 +129,7 @@ export class WorksheetEditor implements HoldsUnsavedWork {
     effect(() => {
       if (this.notice() === null) return;
       clearTimeout(timer);
-      timer = setTimeout(() => this.notice.set(null), 6000);
+      timer = setTimeout(() => this.notice.set(null), 10_000);
     });
     destroyRef.onDestroy(() => clearTimeout(timer));
   }

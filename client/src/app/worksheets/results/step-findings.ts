@@ -1,8 +1,9 @@
-import { ChangeDetectionStrategy, Component, computed, inject, input } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, effect, inject, input } from '@angular/core';
 import { MatIcon } from '@angular/material/icon';
 import { DomSanitizer, SafeHtml } from '@angular/platform-browser';
 import type { StepResult } from '@shared/engine/result';
 import { assumptionStatusWords } from './assumption-status';
+import { loadStylesheet } from './lazy-libraries';
 import { ResultTable } from './result-table';
 import { TexFormula } from './tex-formula';
 import { ValueList } from './value-list';
@@ -50,6 +51,13 @@ export class StepFindings {
     const html = this.result().html;
     return html === null ? null : this.sanitizer.bypassSecurityTrustHtml(html);
   });
+
+  constructor() {
+    // A note's formulas are KaTeX markup already; they need KaTeX's stylesheet and fonts.
+    effect(() => {
+      if (this.result().html?.includes('katex')) void loadStylesheet('katex.css').catch(() => undefined);
+    });
+  }
 
   protected titleOf(stepId: string | undefined): string {
     if (!stepId) return '';
