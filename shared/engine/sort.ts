@@ -95,10 +95,15 @@ export function sortFloat64(values: Float64Array): Float64Array {
   scatterDigits(words, values, out, low, width, offsets.slice(0, buckets));
 
   const scratchLength = largest > LEAF ? largest : 0;
+  const scratch = new Float64Array(scratchLength);
   const state: SortState = {
     out,
-    scratch: new Float64Array(scratchLength),
+    scratch,
+    outWords: new Uint32Array(out.buffer, out.byteOffset, n * 2),
+    scratchWords: new Uint32Array(scratch.buffer, 0, scratchLength * 2),
     digits: new Uint16Array(scratchLength),
+    counts: [],
+    cursors: [],
     base: 0,
   };
   // With the sign bit in the first digit, buckets below the middle hold the negative values;
@@ -109,7 +114,7 @@ export function sortFloat64(values: Float64Array): Float64Array {
     const length = offsets[b + 1] - start;
     if (length < 2) continue;
     state.base = start;
-    sortBucket(state, out, start, length, 64 - low, signInDigit ? b < buckets >>> 1 : firstFlip !== 0);
+    sortBucket(state, out, start, length, 64 - low, signInDigit ? b < buckets >>> 1 : firstFlip !== 0, 0);
   }
   return out;
 }
@@ -172,10 +177,18 @@ interface SortState {
   readonly out: Float64Array;
   /** Ping-pong space for one first-digit bucket; `base` maps its absolute position 0. */
   readonly scratch: Float64Array;
+  /** The two buffers as 32-bit words, for reading digits without creating views per bucket. */
+  readonly outWords: Uint32Array;
+  readonly scratchWords: Uint32Array;
   /** Digits of the bucket being split, computed once for the count and the scatter. */
   readonly digits: Uint16Array;
+  /** Counts and cursors per recursion depth, reused so that splitting allocates nothing. */
+  readonly counts: Uint32Array[];
+  readonly cursors: Uint32Array[];
   base: number;
 }
+
+const MAX_WIDTH = 11;
 
 /**
  * Sorts the values at absolute positions [start, start + length) held in `buf` (`out` or
@@ -188,23 +201,31 @@ function sortBucket(
   length: number,
   consumed: number,
   negative: boolean,
+  depth: number,
 ): void {
   const { out, scratch, digits } = state;
+  if (state.counts.length <= depth) {
+    state.counts.push(new Uint32Array((1 << MAX_WIDTH) + 1));
+    state.cursors.push(new Uint32Array(1 << MAX_WIDTH));
+  }
+  const counts = state.counts[depth];
+  const cursor = state.cursors[depth];
   for (;;) {
     const bufOffset = buf === out ? start : start - state.base;
     if (length <= LEAF || consumed >= 64) {
       insertionSortInto(buf, bufOffset, out, start, length);
       return;
     }
-    const width = Math.min(length > 4096 ? 11 : length > 512 ? 8 : 6, 64 - consumed);
+    const width = Math.min(length > 4096 ? MAX_WIDTH : length > 512 ? 8 : 6, 64 - consumed);
     const buckets = 1 << width;
-    const allEqual = computeDigits(buf, bufOffset, length, 64 - consumed - width, width, negative, digits);
+    const words = buf === out ? state.outWords : state.scratchWords;
+    const allEqual = computeDigits(buf, words, bufOffset, length, 64 - consumed - width, width, negative, digits);
     if (allEqual) {
-      if (buf !== out) out.set(buf.subarray(bufOffset, bufOffset + length), start);
+      if (buf !== out) for (let i = 0; i < length; i++) out[start + i] = buf[bufOffset + i];
       return;
     }
     consumed += width;
-    const counts = new Uint32Array(buckets + 1);
+    counts.fill(0, 0, buckets + 1);
     for (let i = 0; i < length; i++) counts[digits[i] + 1]++;
     let single = false;
     for (let b = 1; b <= buckets; b++) {
@@ -215,7 +236,7 @@ function sortBucket(
 
     const target = buf === out ? scratch : out;
     const targetOffset = target === out ? start : start - state.base;
-    const cursor = counts.slice(0, buckets);
+    for (let b = 0; b < buckets; b++) cursor[b] = counts[b];
     for (let i = 0; i < length; i++) target[targetOffset + cursor[digits[i]]++] = buf[bufOffset + i];
     for (let b = 0; b < buckets; b++) {
       const bucketLength = counts[b + 1] - counts[b];
@@ -223,9 +244,11 @@ function sortBucket(
       const bucketStart = start + counts[b];
       if (bucketLength === 1) {
         if (target !== out) out[bucketStart] = target[targetOffset + counts[b]];
-        continue;
+      } else if (bucketLength <= LEAF) {
+        insertionSortInto(target, targetOffset + counts[b], out, bucketStart, bucketLength);
+      } else {
+        sortBucket(state, target, bucketStart, bucketLength, consumed, negative, depth + 1);
       }
-      sortBucket(state, target, bucketStart, bucketLength, consumed, negative);
     }
     return;
   }
@@ -233,10 +256,12 @@ function sortBucket(
 
 /**
  * Writes into `digits` the key digit of `width` bits whose lowest bit is key bit `low`, for each
- * of `length` values at buf[offset...]; returns whether all those values are equal.
+ * of `length` values at buf[offset...] (`words` is buf as 32-bit words); returns whether all
+ * those values are equal.
  */
 function computeDigits(
   buf: Float64Array,
+  words: Uint32Array,
   offset: number,
   length: number,
   low: number,
@@ -244,19 +269,19 @@ function computeDigits(
   negative: boolean,
   digits: Uint16Array,
 ): boolean {
-  const words = new Uint32Array(buf.buffer, buf.byteOffset + offset * 8, length * 2);
   const mask = (1 << width) - 1;
   // Negative values: the key is the inverted bits.
   const flip = negative ? mask : 0;
+  const w = 2 * offset;
   // Three loops so that the extraction has no branch on where the digit lies.
   if (low >= 32) {
     const shift = low - 32;
-    for (let i = 0; i < length; i++) digits[i] = ((words[2 * i + 1] >>> shift) & mask) ^ flip;
+    for (let i = 0; i < length; i++) digits[i] = ((words[w + 2 * i + 1] >>> shift) & mask) ^ flip;
   } else if (low + width <= 32) {
-    for (let i = 0; i < length; i++) digits[i] = ((words[2 * i] >>> low) & mask) ^ flip;
+    for (let i = 0; i < length; i++) digits[i] = ((words[w + 2 * i] >>> low) & mask) ^ flip;
   } else {
     const up = 32 - low;
-    for (let i = 0; i < length; i++) digits[i] = (((words[2 * i + 1] << up) | (words[2 * i] >>> low)) & mask) ^ flip;
+    for (let i = 0; i < length; i++) digits[i] = (((words[w + 2 * i + 1] << up) | (words[w + 2 * i] >>> low)) & mask) ^ flip;
   }
   const first = buf[offset];
   for (let i = 1; i < length; i++) if (buf[offset + i] !== first) return false;
