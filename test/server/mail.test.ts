@@ -25,7 +25,7 @@ import {
   reviewVerdictMail,
   type MailContent,
 } from '../../server/mail/templates';
-import { suiteDatabaseUrl } from '../support/db';
+import { createTestDatabase, suiteDatabaseUrl } from '../support/db';
 import { fakeTransport, openMailTestApp, type MailTestEnv } from './mail-support';
 import { Client, uniqueEmail } from './support';
 
@@ -108,16 +108,21 @@ describe('mail settings', () => {
 describe('local mail server and outbox sender', function () {
   this.timeout(30_000);
   let database: DatabaseHandle;
+  let own: Awaited<ReturnType<typeof createTestDatabase>>;
   let fake: FakeSmtp;
   const logger = createLogger('silent');
 
+  // A database of its own: background senders of other suites' apps share the run's database and
+  // would deliver these queued messages before the sender under test gets to them.
   before(async () => {
-    database = openDatabase(await suiteDatabaseUrl(), { max: 4 });
+    own = await createTestDatabase();
+    database = openDatabase(own.url, { max: 4 });
     fake = await startFakeSmtp({ db: database.db, logger });
   });
   after(async () => {
     await fake?.close();
     await database?.close();
+    await own?.drop();
   });
 
   const stored = (to: string) =>
