@@ -9,11 +9,12 @@
 /** Segments up to this length are finished by insertion sort. */
 const LEAF = 48;
 /** Below this length the built-in typed-array sort is faster than the radix setup. */
-const SMALL = 256;
+const SMALL = 2048;
 
-/** Width of the first digit. */
+/** Width of the first digit for large arrays. */
 const TOP_BITS = 16;
-const TOP_BUCKETS = 1 << TOP_BITS;
+/** From this length on, the first digit is the fixed top 16 bits, counted in the first pass. */
+const LARGE = 1 << 18;
 
 const LITTLE_ENDIAN = new Uint8Array(new Uint32Array([1]).buffer)[0] === 1;
 
@@ -54,37 +55,65 @@ export function sortFloat64(values: Float64Array): Float64Array {
   }
 
   const words = new Uint32Array(values.buffer, values.byteOffset, n * 2);
-  // Pass 1: refuse NaN, count the first digit (the top 16 key bits: sign, exponent, 4 fraction
-  // bits), and note which key bits differ at all.
+  let low: number;
+  let width: number;
+  let offsets: Uint32Array;
+  let largest: number;
   const firstFlip = words[1] >> 31;
   const firstHi = (words[1] ^ (firstFlip | 0x80000000)) >>> 0;
   const firstLo = (words[0] ^ firstFlip) >>> 0;
   let diffHi = 0;
   let diffLo = 0;
-  let offsets = new Uint32Array(TOP_BUCKETS + 1);
-  for (let i = 0; i < n; i++) {
-    const hi = words[2 * i + 1];
-    const lo = words[2 * i];
-    // NaN: exponent all ones and a non-zero fraction.
-    if ((hi & 0x7ff00000) === 0x7ff00000 && ((hi & 0x000fffff) !== 0 || lo !== 0)) throw nanError(i);
-    const flip = hi >> 31;
-    const keyHi = hi ^ (flip | 0x80000000);
-    diffHi |= keyHi ^ firstHi;
-    diffLo |= (lo ^ flip) ^ firstLo;
-    offsets[(keyHi >>> 16) + 1]++;
-  }
-  if (diffHi === 0 && diffLo === 0) {
-    out.set(values);
-    return out;
-  }
-  let low = 48;
-  let width = TOP_BITS;
-  let largest = prefixSums(offsets);
-  const top = diffHi !== 0 ? 63 - Math.clz32(diffHi) : 31 - Math.clz32(diffLo);
-  if (largest * 2 > n && top < 63) {
-    // One bucket holds most values (readings of one sign and magnitude, such as gauge data):
-    // split instead on the 16 bits from the highest bit on which the values differ.
-    low = Math.max(0, top - (TOP_BITS - 1));
+  if (n >= LARGE) {
+    // Pass 1: refuse NaN, count the first digit (the top 16 key bits: sign, exponent, 4 fraction
+    // bits), and note which key bits differ at all.
+    offsets = new Uint32Array((1 << TOP_BITS) + 1);
+    for (let i = 0; i < n; i++) {
+      const hi = words[2 * i + 1];
+      const lo = words[2 * i];
+      // NaN: exponent all ones and a non-zero fraction.
+      if ((hi & 0x7ff00000) === 0x7ff00000 && ((hi & 0x000fffff) !== 0 || lo !== 0)) throw nanError(i);
+      const flip = hi >> 31;
+      const keyHi = hi ^ (flip | 0x80000000);
+      diffHi |= keyHi ^ firstHi;
+      diffLo |= (lo ^ flip) ^ firstLo;
+      offsets[(keyHi >>> 16) + 1]++;
+    }
+    if (diffHi === 0 && diffLo === 0) {
+      out.set(values);
+      return out;
+    }
+    low = 64 - TOP_BITS;
+    width = TOP_BITS;
+    largest = prefixSums(offsets);
+    const top = diffHi !== 0 ? 63 - Math.clz32(diffHi) : 31 - Math.clz32(diffLo);
+    if (largest * 2 > n && top < 63) {
+      // One bucket holds most values (readings of one sign and magnitude, such as gauge data):
+      // split instead on the 16 bits from the highest bit on which the values differ.
+      low = Math.max(0, top - (TOP_BITS - 1));
+      width = top - low + 1;
+      offsets = new Uint32Array((1 << width) + 1);
+      countDigits(words, n, low, width, offsets);
+      largest = prefixSums(offsets);
+    }
+  } else {
+    // Smaller arrays: a first digit of about log2(n) − 2 bits (fewer buckets to set up), always
+    // from the highest key bit on which the values differ.
+    for (let i = 0; i < n; i++) {
+      const hi = words[2 * i + 1];
+      const lo = words[2 * i];
+      if ((hi & 0x7ff00000) === 0x7ff00000 && ((hi & 0x000fffff) !== 0 || lo !== 0)) throw nanError(i);
+      const flip = hi >> 31;
+      diffHi |= (hi ^ (flip | 0x80000000)) ^ firstHi;
+      diffLo |= (lo ^ flip) ^ firstLo;
+    }
+    if (diffHi === 0 && diffLo === 0) {
+      out.set(values);
+      return out;
+    }
+    const top = diffHi !== 0 ? 63 - Math.clz32(diffHi) : 31 - Math.clz32(diffLo);
+    const bits = Math.min(TOP_BITS, Math.max(6, Math.ceil(Math.log2(n)) - 2));
+    low = Math.max(0, top - (bits - 1));
     width = top - low + 1;
     offsets = new Uint32Array((1 << width) + 1);
     countDigits(words, n, low, width, offsets);

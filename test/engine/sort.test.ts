@@ -27,8 +27,8 @@ const anyDouble = fc.oneof(
   fc.double({ noNaN: true, min: -2.2250738585072014e-308, max: 2.2250738585072014e-308 }),
 );
 
-// Lengths on both sides of the small-array cut-over and of the leaf size.
-const lengths = fc.oneof(fc.integer({ min: 0, max: 300 }), fc.integer({ min: 200, max: 6000 }));
+// Lengths on both sides of the small-array cut-over (2048) and of the leaf size.
+const lengths = fc.oneof(fc.integer({ min: 0, max: 300 }), fc.integer({ min: 1500, max: 12000 }));
 
 describe('sortFloat64', () => {
   it('orders any doubles exactly as Float64Array.prototype.sort (fast-check)', function () {
@@ -53,7 +53,7 @@ describe('sortFloat64', () => {
   it('orders arrays of fully random doubles (fast-check)', function () {
     this.timeout(120_000);
     fc.assert(
-      fc.property(fc.float64Array({ noNaN: true, minLength: 250, maxLength: 5000 }), (values) => {
+      fc.property(fc.float64Array({ noNaN: true, minLength: 2000, maxLength: 8000 }), (values) => {
         expectSameBits(sortFloat64(values), reference(values));
       }),
       { numRuns: 100 },
@@ -91,20 +91,21 @@ describe('sortFloat64', () => {
       ['high word', () => 3 + uniform() * 0.5],
       ['mostly one value', () => (uniform() < 0.9 ? 7.25 : 7.25 + uniform())],
     ];
-    for (const [name, draw] of cases) {
-      const values = new Float64Array(30000);
+    // 30,000 values take the path for smaller arrays, 300,000 the one for large arrays.
+    for (const [name, draw, length] of [...cases.map(([a, b]) => [a, b, 30000] as const), ...cases.map(([a, b]) => [a, b, 300000] as const)]) {
+      const values = new Float64Array(length);
       for (let i = 0; i < values.length; i++) values[i] = draw();
       const sorted = sortFloat64(values);
       try {
         expectSameBits(sorted, reference(values));
       } catch (error) {
-        throw new Error(`${name}: ${(error as Error).message}`);
+        throw new Error(`${name} (${length} values): ${(error as Error).message}`);
       }
     }
   });
 
   it('orders -0 before +0 and keeps the sign of zeros', () => {
-    const values = new Float64Array(1000);
+    const values = new Float64Array(3000);
     for (let i = 0; i < values.length; i++) values[i] = i % 3 === 0 ? -0 : i % 3 === 1 ? 0 : i % 2 ? -1e-320 : 1e-320;
     const sorted = sortFloat64(values);
     expectSameBits(sorted, reference(values));
@@ -144,10 +145,10 @@ describe('sortFloat64', () => {
   });
 
   it('sorts a view into a larger buffer without touching the rest', () => {
-    const buffer = new Float64Array(3000);
+    const buffer = new Float64Array(12000);
     for (let i = 0; i < buffer.length; i++) buffer[i] = Math.sin(i) * 1000;
     const copy = buffer.slice();
-    const view = buffer.subarray(500, 2500);
+    const view = buffer.subarray(500, 10500);
     expectSameBits(sortFloat64(view), reference(view));
     expectSameBits(buffer, copy);
   });
