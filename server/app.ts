@@ -17,7 +17,9 @@ import type { Database } from './db/client';
 import { healthRoutes } from './health/routes';
 import { apiNotFound, errorHandler } from './http/errors';
 import { assertAllDeclared, type ApiRouter, type RouteDefinition, type RouterDeps } from './http/route';
+import { AnswerCache, msFromEnv } from './http/answer-cache';
 import { postgresRateLimitStores, type RateLimitStores } from './http/rate-limit-store';
+import { publicAnswerKey } from './publishing/routes';
 import { createLogger, type Logger } from './log';
 import { mailRouters, MailService } from './mail/index';
 import { teamRoutes } from './teams/routes';
@@ -53,6 +55,8 @@ export interface AppDeps {
   evaluator?: WorksheetServiceDeps['evaluator'];
   /** Throttling of unknown/revoked published-link tokens. */
   publicRateLimit?: WorksheetServiceDeps['publicRateLimit'];
+  /** Published answers kept in memory (default: PUBLIC_LINK_CACHE_MS, 1 s; 0 turns it off; key: publicAnswerKey). */
+  publishedAnswers?: AnswerCache;
 }
 
 export const sessionCookieName = 'spreadproof.sid';
@@ -90,6 +94,13 @@ export function createApp(deps: AppDeps): express.Express {
   app.disable('x-powered-by');
   // Behind a TLS-terminating proxy on the same machine, req.secure must reflect the original scheme.
   if (production) app.set('trust proxy', 'loopback');
+
+  // Published links are read by anyone, often by many at once: a fresh answer leaves from memory
+  // before logging, sessions and the routers. Its headers (helmet's included) are those of the
+  // answer it repeats; the publishing router fills and evicts the entries.
+  const publishedAnswers = deps.publishedAnswers ?? new AnswerCache({ ttlMs: msFromEnv('PUBLIC_LINK_CACHE_MS', 1000), key: publicAnswerKey });
+  app.use(publishedAnswers.middleware());
+  app.locals.publishedAnswers = publishedAnswers;
 
   app.use(
     pinoHttp({
@@ -145,6 +156,7 @@ export function createApp(deps: AppDeps): express.Express {
     mail: deps.mail ?? new MailService({ db: deps.db, logger }),
     evaluator: deps.evaluator,
     publicRateLimit: deps.publicRateLimit,
+    publishedAnswers,
   })) {
     if (!router.mountPath.startsWith('/api/')) throw new Error(`API router mounted outside /api: ${router.mountPath}`);
     assertAllDeclared(router);

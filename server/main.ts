@@ -10,6 +10,7 @@ import http from 'node:http';
 import connectPgSimple from 'connect-pg-simple';
 import session from 'express-session';
 import { createApp } from './app';
+import type { AnswerCache } from './http/answer-cache';
 import { clientBuildExists } from './client-build';
 import { authRateLimitFromEnv, configuredPort, host, isProduction, sessionSecret } from './config';
 import { openDatabase, type DatabaseHandle } from './db/client';
@@ -64,7 +65,12 @@ export async function serve(options: ServeOptions): Promise<{ url: string; close
     authRateLimit: authRateLimitFromEnv(),
   });
 
-  const server = http.createServer(app);
+  // A fresh published answer leaves from memory before Express sees the request (server/app.ts
+  // keeps the same check as its first middleware for in-process use).
+  const publishedAnswers = app.locals.publishedAnswers as AnswerCache | undefined;
+  const server = http.createServer((req, res) => {
+    if (!publishedAnswers?.handle(req, res)) app(req, res);
+  });
   await new Promise<void>((resolve, reject) => {
     server.once('error', reject);
     server.listen(options.port ?? configuredPort(), host, () => resolve());

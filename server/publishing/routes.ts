@@ -3,7 +3,7 @@
 // the database does not open any link.
 import { randomBytes } from 'node:crypto';
 import { and, desc, eq, isNull } from 'drizzle-orm';
-import rateLimit, { type Store } from 'express-rate-limit';
+import type { Store } from 'express-rate-limit';
 import type { RequestHandler } from 'express';
 import { z } from 'zod';
 import type { Link, PublicRevisionAnswer, PublishAnswer } from '@shared/api/worksheets';
@@ -11,8 +11,20 @@ import { sha256Hex } from '@shared/engine/hash';
 import { publishedLinks, revisions, users, worksheets } from '../../schema/index';
 import { recordAudit } from '../audit/audit';
 import { HttpError, notFound, sendError } from '../http/errors';
+import { AnswerCache } from '../http/answer-cache';
+import { failureLimiter } from '../http/failure-limiter';
 import { ApiRouter, publicRoute, requireTeamRole, type RouterDeps } from '../http/route';
 import { linkTeam, revisionTeam, worksheetTeam } from '../worksheets/access';
+
+/**
+ * The cache key of a published-view request (the token's hash), or null for any other request.
+ * server/app.ts answers fresh entries before the rest of the middleware; this router fills them.
+ */
+export function publicAnswerKey(req: { method?: string; url?: string }): string | null {
+  if (req.method !== 'GET' || !req.url) return null;
+  const match = /^\/api\/public\/([A-Za-z0-9_-]{43})(?:\?|$)/.exec(req.url);
+  return match ? tokenHash(match[1]) : null;
+}
 
 export interface PublicRateLimit {
   windowMs: number;
@@ -29,16 +41,14 @@ export const newToken = () => randomBytes(TOKEN_BYTES).toString('base64url');
 export const tokenHash = (token: string) => sha256Hex(token);
 
 function guessLimiter(options: PublicRateLimit, store?: Store): RequestHandler {
-  return rateLimit({
-    store,
+  // Only answers ≥ 400 count, after the fact: reading a valid link is never throttled, however
+  // many readers share an address, and costs no write (server/http/failure-limiter.ts).
+  return failureLimiter({
     windowMs: options.windowMs,
     limit: options.failures,
-    // Only answers ≥ 400 count: reading a valid link is never throttled, guessing is.
-    skipSuccessfulRequests: true,
-    standardHeaders: 'draft-7',
-    legacyHeaders: false,
-    handler: (_req, res, _next, used) => {
-      const minutes = Math.max(1, Math.ceil(used.windowMs / 60000));
+    store,
+    refuse: (res, windowMs) => {
+      const minutes = Math.max(1, Math.ceil(windowMs / 60000));
       sendError(res, new HttpError(429, 'rate_limited', `Too many requests for unknown links. Wait ${minutes} minute${minutes === 1 ? '' : 's'} and try again.`));
     },
   });
@@ -75,8 +85,13 @@ async function findLink(db: RouterDeps['db'], id: string): Promise<Link | null> 
   return row ? linkAnswer(row) : null;
 }
 
-export function publishingRoutes(deps: RouterDeps & { publicRateLimit?: PublicRateLimit }): ApiRouter[] {
+export function publishingRoutes(deps: RouterDeps & { publicRateLimit?: PublicRateLimit; publishedAnswers?: AnswerCache }): ApiRouter[] {
   const limiter = guessLimiter(deps.publicRateLimit ?? defaultPublicRateLimit, deps.rateLimitStores?.('public-link-guesses'));
+  // Published answers by token hash (server/http/answer-cache.ts, served in front by server/app.ts):
+  // a pinned revision never changes, so a valid link is answered from memory for
+  // PUBLIC_LINK_CACHE_MS (default 1 s) after it was read; revoking evicts at once here and within
+  // that time on other server processes.
+  const answers = deps.publishedAnswers ?? new AnswerCache({ ttlMs: 0, key: publicAnswerKey });
 
   const byRevision = new ApiRouter('/api/revisions/:revisionId/links', deps).post(
     '/',
@@ -124,12 +139,14 @@ export function publishingRoutes(deps: RouterDeps & { publicRateLimit?: PublicRa
     '/:linkId/revoke',
     { access: requireTeamRole('owner', linkTeam), summary: 'Revoke a published link', params: z.object({ linkId: z.uuid() }) },
     async ({ res, db, user, team, params }) => {
+      let revokedHash: string | null = null;
       await db.transaction(async (tx) => {
         const changed = await tx
           .update(publishedLinks)
           .set({ revokedAt: new Date(), revokedBy: user.id })
           .where(and(eq(publishedLinks.id, params.linkId), isNull(publishedLinks.revokedAt)))
-          .returning({ revisionId: publishedLinks.revisionId });
+          .returning({ revisionId: publishedLinks.revisionId, tokenHash: publishedLinks.tokenHash });
+        if (changed.length > 0) revokedHash = changed[0].tokenHash;
         if (changed.length > 0) {
           const [rev] = await tx.select({ worksheetId: revisions.worksheetId }).from(revisions).where(eq(revisions.id, changed[0].revisionId));
           await recordAudit(tx, {
@@ -143,6 +160,8 @@ export function publishingRoutes(deps: RouterDeps & { publicRateLimit?: PublicRa
           });
         }
       });
+      // After the commit, so that no read in between can put the old answer back.
+      if (revokedHash) answers.evict(revokedHash);
       res.json({ link: await findLink(db, params.linkId) });
     },
   );
@@ -171,23 +190,25 @@ export function publishingRoutes(deps: RouterDeps & { publicRateLimit?: PublicRa
         .where(eq(publishedLinks.tokenHash, tokenHash(token)));
       if (!row) throw notFound('There is no published worksheet at this link.');
       if (row.revokedAt) throw new HttpError(410, 'link_revoked', 'This link has been withdrawn by the team that published it.');
-      const document = JSON.parse(row.content);
-      const answer: PublicRevisionAnswer = {
+      // The stored document and results are canonical JSON text already: they are spliced into
+      // the answer as they are (no parse and re-serialisation of the results, which are most of
+      // the bytes), so the reader gets exactly the text the hashes were taken of.
+      const { title } = JSON.parse(row.content) as { title?: string };
+      const head: Omit<PublicRevisionAnswer, 'revision'> & { revision: Omit<PublicRevisionAnswer['revision'], 'document' | 'results'> } = {
         // The title of the pinned revision, not the worksheet's current one.
-        title: document.title ?? row.title,
+        title: title ?? row.title,
         revision: {
           number: row.number,
           createdAt: row.createdAt.toISOString(),
           contentHash: row.contentHash,
           resultsHash: row.resultsHash,
           engineVersion: row.engineVersion,
-          document,
-          results: JSON.parse(row.results),
         },
       };
+      const opening = JSON.stringify(head);
       res.set('X-Robots-Tag', 'noindex, nofollow');
       res.set('Referrer-Policy', 'no-referrer');
-      res.json(answer);
+      answers.sendAndStore(res, tokenHash(token), `${opening.slice(0, -2)},"document":${row.content},"results":${row.results}}}`, 'application/json; charset=utf-8');
     },
   );
 

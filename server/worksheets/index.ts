@@ -1,4 +1,5 @@
 // Every router of the worksheet service, for server/app.ts to mount.
+import type { AnswerCache } from '../http/answer-cache';
 import type { RouterDeps, ApiRouter } from '../http/route';
 import { auditRoutes } from '../audit/routes';
 import { compareRoutes } from '../compare/routes';
@@ -13,6 +14,8 @@ export interface WorksheetServiceDeps extends RouterDeps {
   /** One per app; created on demand when absent (its worker threads start on first evaluation). */
   evaluator?: Evaluator;
   publicRateLimit?: PublicRateLimit;
+  /** Published answers kept in memory; server/app.ts serves fresh ones before its other middleware. */
+  publishedAnswers?: AnswerCache;
 }
 
 export function worksheetServiceRouters(deps: WorksheetServiceDeps): ApiRouter[] {

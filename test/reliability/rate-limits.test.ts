@@ -9,6 +9,7 @@ import { randomBytes } from 'node:crypto';
 import { expect } from 'chai';
 import { suiteDatabaseUrl } from '../support/db';
 import { Client, testPassword } from '../server/support';
+import { createBoreWorksheet, openServiceApp, teamOfRoles } from '../server/worksheets-support';
 import { openAppOn, sleep, withClient, type AppOn } from './support';
 
 describe('reliability: rate-limit counters shared through PostgreSQL', function () {
@@ -74,6 +75,27 @@ describe('reliability: rate-limit counters shared through PostgreSQL', function 
     } finally {
       await one.close();
       await two.close();
+    }
+  });
+
+  it('serves many simultaneous readers of one published link behind one address, and still limits guessing', async () => {
+    const harness = await openServiceApp({ publicRateLimit: { windowMs: 60_000, failures: 5 } });
+    try {
+      const team = await teamOfRoles(harness, 'Busy Link');
+      const sheet = await createBoreWorksheet(team.clients.editor, team.teamId);
+      const { body } = await team.clients.owner.post(`/api/revisions/${sheet.revision.id}/links`, {}).expect(201);
+      // 80 readers at once, more than the failure limit and the 60 a per-request count allowed.
+      const readers = Array.from({ length: 80 }, () => new Client(harness.app));
+      const statuses = await Promise.all(readers.map(async (r) => (await r.get(`/api/public/${body.token}`)).status));
+      expect(statuses.filter((s) => s !== 200), 'readers refused').to.deep.equal([]);
+      const guesser = new Client(harness.app);
+      const guesses: number[] = [];
+      for (let i = 0; i < 7; i++) guesses.push((await guesser.get(`/api/public/${randomBytes(32).toString('base64url')}`)).status);
+      expect(guesses).to.deep.equal([404, 404, 404, 404, 404, 429, 429]);
+      const refused = await guesser.get(`/api/public/${randomBytes(32).toString('base64url')}`).expect(429);
+      expect(Number(refused.headers['retry-after'])).to.be.within(1, 60);
+    } finally {
+      await harness.close();
     }
   });
 });

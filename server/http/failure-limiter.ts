@@ -1,0 +1,70 @@
+/**
+ * A limiter that counts only failed requests, and counts them after the answer: for published links
+ * (guessed tokens).
+ *
+ * Why not express-rate-limit's `skipSuccessfulRequests`: it counts every request when it arrives
+ * and takes successful ones back when they finish, so requests still in flight count as failures.
+ * Sixty readers of one published link behind one address (an office behind NAT, a proxy) were
+ * refused with 429 although none had failed; with a shared store, each successful read also cost
+ * two writes to the database. Here a request first reads the count (refused once `limit` failures
+ * were seen in the window) and only an answer of 400 or above adds one, before it is sent.
+ *
+ * The price: requests sent at the same instant all read the count before any of them adds to it,
+ * so a burst can exceed the limit by its own size. That is harmless for 256-bit link tokens, which
+ * cannot be guessed anyway; sign-in (guessable passwords) keeps express-rate-limit, which counts a
+ * request on arrival (server/auth/routes.ts).
+ */
+import type { Request, RequestHandler } from 'express';
+import { ipKeyGenerator, MemoryStore, type Options, type Store } from 'express-rate-limit';
+
+export interface FailureLimiterOptions {
+  windowMs: number;
+  /** Failed requests allowed per key within the window; the next request is refused. */
+  limit: number;
+  /** Shared counters (PostgreSQL); default: this process's memory. */
+  store?: Store;
+  key?: (req: Request) => string;
+  /** Answers a refused request (429 in the API's error shape). */
+  refuse: (res: Parameters<RequestHandler>[1], windowMs: number) => void;
+  /** Called when the store cannot be read or written; the request is then let through. */
+  onStoreError?: (error: unknown) => void;
+}
+
+export function failureLimiter(options: FailureLimiterOptions): RequestHandler {
+  const store = options.store ?? new MemoryStore();
+  store.init?.({ windowMs: options.windowMs } as Options);
+  const keyOf = options.key ?? ((req: Request) => ipKeyGenerator(req.ip ?? '0.0.0.0'));
+  if (!store.get) throw new Error('failureLimiter needs a store that can read a count (get)');
+
+  return async (req, res, next) => {
+    const key = keyOf(req);
+    let hits = 0;
+    let resetTime: Date | undefined;
+    try {
+      const info = await store.get!(key);
+      hits = info?.totalHits ?? 0;
+      resetTime = info?.resetTime;
+    } catch (error) {
+      // Counting must not take the route down with the store; the route's own queries will
+      // report a lost database.
+      options.onStoreError?.(error);
+    }
+    if (hits >= options.limit) {
+      const seconds = resetTime ? Math.max(1, Math.ceil((resetTime.getTime() - Date.now()) / 1000)) : Math.ceil(options.windowMs / 1000);
+      res.setHeader('Retry-After', String(seconds));
+      options.refuse(res, options.windowMs);
+      return;
+    }
+    // A failure is counted before its answer leaves, so the next request from the same client
+    // (on any process) already sees it.
+    const end = res.end.bind(res) as (...args: unknown[]) => unknown;
+    res.end = ((...args: unknown[]) => {
+      if (res.statusCode < 400) return end(...args);
+      Promise.resolve(store.increment(key))
+        .catch((error: unknown) => options.onStoreError?.(error))
+        .finally(() => end(...args));
+      return res;
+    }) as typeof res.end;
+    next();
+  };
+}
