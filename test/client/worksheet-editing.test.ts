@@ -7,6 +7,8 @@ import { expect } from 'chai';
 import type { Step, Worksheet } from '../../shared/format/worksheet';
 import { WorksheetSchema } from '../../shared/format/worksheet';
 import {
+  MAX_TEXT_CELLS,
+  MAX_TEXT_ROWS,
   TableTextError,
   cellNumber,
   columnsToText,
@@ -87,6 +89,18 @@ describe('client: tables pasted or typed as text', () => {
     expect(() => parseTableText('a,b\n1,2\n1,2,3\n')).to.throw(TableTextError, /Line 3 has more cells/);
     expect(() => parseTableText('   \n')).to.throw(TableTextError, /nothing to read/);
     expect(() => parseTableText('reading,line\n')).to.throw(TableTextError, /no data rows/);
+  });
+
+  it('sends tables too large for a worksheet body to the file upload, by rows and by cells', () => {
+    // The worksheet document travels as a JSON body of at most 1 MB (server limit, README).
+    const rows = (count: number, width: number) =>
+      [Array.from({ length: width }, (_, j) => `c${j}`).join(','), ...Array.from({ length: count }, (_, i) => Array(width).fill(String(i)).join(','))].join('\n');
+    expect(parseTableText(rows(MAX_TEXT_ROWS, 1)).columns[0].values).to.have.length(MAX_TEXT_ROWS);
+    expect(() => parseTableText(rows(MAX_TEXT_ROWS + 1, 1))).to.throw(TableTextError, /rows; at most .* Upload it as a file/);
+    const width = 4;
+    const fitting = Math.floor(MAX_TEXT_CELLS / width);
+    expect(parseTableText(rows(fitting, width)).columns).to.have.length(width);
+    expect(() => parseTableText(rows(fitting + 1, width))).to.throw(TableTextError, /cells; at most .* Upload it as a file/);
   });
 
   it('writes columns back as text that reads back to the same columns', () => {

@@ -42,14 +42,6 @@ export interface WorksheetListQuery {
   pageSize?: number;
 }
 
-/** Detection overrides for an upload; omitted fields are detected by the server. */
-export interface UploadOptions {
-  delimiter?: ',' | ';' | '\t' | '|';
-  decimalComma?: boolean;
-  hasHeader?: boolean;
-  sheet?: string;
-}
-
 /** What an upload reports while it runs, then once when it is done. */
 export type UploadProgress =
   | { state: 'sending'; loaded: number; total: number | null; fraction: number | null }
@@ -257,13 +249,10 @@ export class WorksheetApi {
    * report upload progress, so uploads go through an XHR-backed client that has the same
    * interceptor (CSRF token, error conversion).
    */
-  uploadDataset(teamId: string, file: File, options: UploadOptions = {}): Observable<UploadProgress> {
+  uploadDataset(teamId: string, file: File): Observable<UploadProgress> {
+    // The service detects delimiter, decimal mark and header row itself (no override fields).
     const form = new FormData();
     form.append('file', file, file.name);
-    if (options.delimiter !== undefined) form.append('delimiter', options.delimiter);
-    if (options.decimalComma !== undefined) form.append('decimalComma', String(options.decimalComma));
-    if (options.hasHeader !== undefined) form.append('hasHeader', String(options.hasHeader));
-    if (options.sheet !== undefined && options.sheet !== '') form.append('sheet', options.sheet);
     return this.xhr()
       .post<UploadAnswer>(`/api/teams/${encodeURIComponent(teamId)}/datasets`, form, { observe: 'events', reportProgress: true })
       .pipe(

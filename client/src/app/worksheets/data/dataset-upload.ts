@@ -1,12 +1,10 @@
 import { ChangeDetectionStrategy, Component, DestroyRef, ElementRef, computed, inject, input, output, signal, viewChild } from '@angular/core';
 import { MatButton } from '@angular/material/button';
-import { MatFormField, MatLabel } from '@angular/material/form-field';
 import { MatIcon } from '@angular/material/icon';
-import { MatOption, MatSelect } from '@angular/material/select';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { Subscription } from 'rxjs';
 import { toApiError } from '../../core/api-error';
-import { UploadAnswer, UploadOptions, WorksheetApi } from '../worksheet-api';
+import { UploadAnswer, WorksheetApi } from '../worksheet-api';
 
 /** Largest file the service takes (50 MB); bigger ones are refused here before sending. */
 export const MAX_UPLOAD_BYTES = 50 * 1024 * 1024;
@@ -19,12 +17,12 @@ function sizeText(bytes: number): string {
 
 /**
  * Uploads a CSV, TSV, TXT or XLSX file to the team's datasets with a progress bar, and reports
- * the stored dataset (its id is the SHA-256 of the bytes). The service reads the table; its
- * message names the line and column of anything it cannot read.
+ * the stored dataset (its id is the SHA-256 of the bytes). The service detects the delimiter,
+ * decimal mark and header row; its message names the line and column of anything it cannot read.
  */
 @Component({
   selector: 'sp-dataset-upload',
-  imports: [MatButton, MatIcon, MatProgressBar, MatFormField, MatLabel, MatSelect, MatOption],
+  imports: [MatButton, MatIcon, MatProgressBar],
   template: `
     <div class="upload" [class.dragging]="dragging()" (dragover)="dragOver($event)" (dragleave)="dragging.set(false)" (drop)="drop($event)">
       <input #file class="sp-visually-hidden" type="file" accept=".csv,.tsv,.txt,.xlsx,text/csv,text/tab-separated-values,text/plain,application/vnd.openxmlformats-officedocument.spreadsheetml.sheet" (change)="picked($event)" [disabled]="disabled() || busy()" aria-label="Table file to upload" data-testid="upload-input" />
@@ -36,37 +34,6 @@ function sizeText(bytes: number): string {
         <span class="sp-muted drop-hint">or drop a CSV, TSV or XLSX file here (up to 50 MB)</span>
       </div>
 
-      <details class="options">
-        <summary>Reading options</summary>
-        <div class="options-row">
-          <mat-form-field appearance="outline" subscriptSizing="dynamic">
-            <mat-label>Delimiter</mat-label>
-            <mat-select [value]="delimiter()" (selectionChange)="delimiter.set($event.value)">
-              <mat-option value="">Detect</mat-option>
-              <mat-option value=",">Comma</mat-option>
-              <mat-option value=";">Semicolon</mat-option>
-              <mat-option [value]="tab">Tab</mat-option>
-              <mat-option value="|">Vertical bar</mat-option>
-            </mat-select>
-          </mat-form-field>
-          <mat-form-field appearance="outline" subscriptSizing="dynamic">
-            <mat-label>Decimal mark</mat-label>
-            <mat-select [value]="decimal()" (selectionChange)="decimal.set($event.value)">
-              <mat-option value="">Detect</mat-option>
-              <mat-option value="point">Point (1.5)</mat-option>
-              <mat-option value="comma">Comma (1,5)</mat-option>
-            </mat-select>
-          </mat-form-field>
-          <mat-form-field appearance="outline" subscriptSizing="dynamic">
-            <mat-label>First row</mat-label>
-            <mat-select [value]="header()" (selectionChange)="header.set($event.value)">
-              <mat-option value="">Detect</mat-option>
-              <mat-option value="yes">Column names</mat-option>
-              <mat-option value="no">Data</mat-option>
-            </mat-select>
-          </mat-form-field>
-        </div>
-      </details>
 
       @if (progress(); as p) {
         <div class="progress" role="status" aria-live="polite">
@@ -97,10 +64,6 @@ function sizeText(bytes: number): string {
     .upload.dragging { border-color: var(--mat-sys-primary); background: var(--mat-sys-primary-container); }
     .row { display: flex; align-items: center; gap: 12px; flex-wrap: wrap; }
     .drop-hint { font: var(--mat-sys-body-small); }
-    .options summary { cursor: pointer; font: var(--mat-sys-label-large); color: var(--mat-sys-on-surface-variant); width: fit-content; }
-    .options summary:focus-visible { outline: 2px solid var(--mat-sys-primary); outline-offset: 2px; }
-    .options-row { display: grid; grid-template-columns: repeat(auto-fill, minmax(160px, 1fr)); gap: 8px; margin-top: 8px; }
-    .options-row mat-form-field { width: 100%; }
     .sp-alert.error { align-items: center; }
     .error-text { flex: 1; }
     .progress-text { display: flex; align-items: center; justify-content: space-between; gap: 8px; font: var(--mat-sys-body-small); flex-wrap: wrap; }
@@ -115,10 +78,6 @@ export class DatasetUpload {
 
   private readonly api = inject(WorksheetApi);
   private readonly fileInput = viewChild.required<ElementRef<HTMLInputElement>>('file');
-  protected readonly tab = '\t';
-  protected readonly delimiter = signal<string>('');
-  protected readonly decimal = signal<'' | 'point' | 'comma'>('');
-  protected readonly header = signal<'' | 'yes' | 'no'>('');
   protected readonly dragging = signal(false);
   protected readonly progress = signal<{ name: string; size: string; fraction: number | null } | null>(null);
   protected readonly error = signal<string | null>(null);
@@ -169,13 +128,8 @@ export class DatasetUpload {
       this.error.set(`${file.name} is empty.`);
       return;
     }
-    const options: UploadOptions = {};
-    const delimiter = this.delimiter();
-    if (delimiter === ',' || delimiter === ';' || delimiter === '\t' || delimiter === '|') options.delimiter = delimiter;
-    if (this.decimal()) options.decimalComma = this.decimal() === 'comma';
-    if (this.header()) options.hasHeader = this.header() === 'yes';
     this.progress.set({ name: file.name, size: sizeText(file.size), fraction: 0 });
-    this.subscription = this.api.uploadDataset(this.teamId(), file, options).subscribe({
+    this.subscription = this.api.uploadDataset(this.teamId(), file).subscribe({
       next: (event) => {
         if (event.state === 'sending') {
           this.progress.set({ name: file.name, size: sizeText(file.size), fraction: event.fraction });

@@ -30,7 +30,9 @@ export class TableTextError extends Error {
   }
 }
 
-export const MAX_TEXT_ROWS = 100_000;
+/** Typed-in tables travel inside the worksheet document (a JSON body of at most 1 MB): larger ones are uploaded. */
+export const MAX_TEXT_ROWS = 20_000;
+export const MAX_TEXT_CELLS = 60_000;
 export const MAX_TEXT_COLUMNS = 200;
 
 const NUMBER = /^[+-]?(\d+(\.\d*)?|\.\d+)([eE][+-]?\d+)?$/;
@@ -153,6 +155,10 @@ export function parseTableText(text: string, options: { delimiter?: Delimiter; h
   if (body.length === 0) throw new TableTextError('The table has a header row but no data rows.', 1);
   if (body.length > MAX_TEXT_ROWS) {
     throw new TableTextError(`The table has ${body.length} rows; at most ${MAX_TEXT_ROWS} can be typed in. Upload it as a file instead.`);
+  }
+
+  if (body.length * width > MAX_TEXT_CELLS) {
+    throw new TableTextError(`The table has ${body.length * width} cells; at most ${MAX_TEXT_CELLS} can be typed in. Upload it as a file instead.`);
   }
 
   let shortRows = 0;

@@ -1,6 +1,6 @@
 import { DestroyRef, Injectable, computed, effect, inject, signal } from '@angular/core';
 import { takeUntilDestroyed, toObservable } from '@angular/core/rxjs-interop';
-import { Observable, catchError, debounceTime, distinctUntilChanged, filter, map, of, switchMap, tap, timer } from 'rxjs';
+import { Observable, catchError, debounceTime, distinctUntilChanged, filter, map, of, retry, switchMap, tap, throwError, timer } from 'rxjs';
 import type { EvaluationResult, StepResult } from '@shared/engine/result';
 import type { Step, StepKind, Worksheet } from '@shared/format/worksheet';
 import { ApiError, toApiError } from '../../core/api-error';
@@ -337,6 +337,12 @@ export class WorksheetDraft {
           // Shows progress only for evaluations that take noticeably long.
           const slow = timer(SLOW_EVALUATION_MS).subscribe(() => this.slowEvaluation.set(true));
           return this.api.evaluateDraft(worksheet.id, document as Worksheet).pipe(
+            // All evaluation workers busy (503 evaluation_busy): try again shortly, twice.
+            retry({
+              count: 2,
+              delay: (error: unknown, attempt) =>
+                toApiError(error).code === 'evaluation_busy' ? timer(1000 * attempt) : throwError(() => error),
+            }),
             map((outcome) => ({ key, outcome, error: null as ApiError | null })),
             catchError((error: unknown) => of({ key, outcome: null, error: toApiError(error) })),
             tap({
