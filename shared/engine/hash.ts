@@ -26,7 +26,7 @@ type TypedNumberArray =
 /** Serialises `value` canonically (see the module comment). Throws TypeError on non-JSON values. */
 export function canonicalJson(value: unknown): string {
   const out: string[] = [];
-  write(value, '$', out, new Set());
+  write(value, [], out, new Set());
   return out.join('');
 }
 
@@ -41,9 +41,21 @@ export function canonicalHash(value: unknown): string {
   return sha256Hex(canonicalJson(value));
 }
 
-function formatNumber(n: number, path: string): string {
+/**
+ * The path of the value being written, as member names and indices from the root; turned into
+ * text ($.steps[2].value) only for an error message, so that writing costs no string per value.
+ */
+type PathStack = (string | number)[];
+
+function pathText(path: PathStack, last?: string | number): string {
+  let text = '$';
+  for (const segment of last === undefined ? path : [...path, last]) text += typeof segment === 'number' ? `[${segment}]` : memberPath(segment);
+  return text;
+}
+
+function formatNumber(n: number, path: PathStack, last?: string | number): string {
   if (!Number.isFinite(n)) {
-    throw new TypeError(`canonicalJson: non-finite number ${String(n)} at ${path}`);
+    throw new TypeError(`canonicalJson: non-finite number ${String(n)} at ${pathText(path, last)}`);
   }
   // Number::toString already prints -0 as "0" and integers below 1e21 without an exponent.
   return String(n);
@@ -57,7 +69,7 @@ function isBigIntArray(value: unknown): boolean {
   return value instanceof BigInt64Array || value instanceof BigUint64Array;
 }
 
-function write(value: unknown, path: string, out: string[], ancestors: Set<object>): void {
+function write(value: unknown, path: PathStack, out: string[], ancestors: Set<object>): void {
   if (value === null) {
     out.push('null');
     return;
@@ -75,7 +87,7 @@ function write(value: unknown, path: string, out: string[], ancestors: Set<objec
     case 'object':
       break;
     default:
-      throw new TypeError(`canonicalJson: cannot serialise a ${typeof value} at ${path}`);
+      throw new TypeError(`canonicalJson: cannot serialise a ${typeof value} at ${pathText(path)}`);
   }
 
   const obj = value as object;
@@ -83,16 +95,16 @@ function write(value: unknown, path: string, out: string[], ancestors: Set<objec
     out.push('[');
     for (let i = 0; i < obj.length; i++) {
       if (i > 0) out.push(',');
-      out.push(formatNumber(obj[i], `${path}[${i}]`));
+      out.push(formatNumber(obj[i], path, i));
     }
     out.push(']');
     return;
   }
   if (ArrayBuffer.isView(obj)) {
-    throw new TypeError(`canonicalJson: cannot serialise a ${obj.constructor.name} at ${path}`);
+    throw new TypeError(`canonicalJson: cannot serialise a ${obj.constructor.name} at ${pathText(path)}`);
   }
   if (ancestors.has(obj)) {
-    throw new TypeError(`canonicalJson: circular reference at ${path}`);
+    throw new TypeError(`canonicalJson: circular reference at ${pathText(path)}`);
   }
   const toJSON = (obj as { toJSON?: unknown }).toJSON;
   if (typeof toJSON === 'function') {
@@ -109,14 +121,16 @@ function write(value: unknown, path: string, out: string[], ancestors: Set<objec
       if (i > 0) out.push(',');
       const item: unknown = obj[i];
       if (item === undefined) {
-        throw new TypeError(`canonicalJson: undefined array element at ${path}[${i}]`);
+        throw new TypeError(`canonicalJson: undefined array element at ${pathText(path, i)}`);
       }
-      write(item, `${path}[${i}]`, out, ancestors);
+      path.push(i);
+      write(item, path, out, ancestors);
+      path.pop();
     }
     out.push(']');
   } else {
     if (obj instanceof Map || obj instanceof Set) {
-      throw new TypeError(`canonicalJson: cannot serialise a ${obj.constructor.name} at ${path}`);
+      throw new TypeError(`canonicalJson: cannot serialise a ${obj.constructor.name} at ${pathText(path)}`);
     }
     const record = obj as Record<string, unknown>;
     // Default sort compares UTF-16 code units, which is the order RFC 8785 prescribes.
@@ -128,7 +142,9 @@ function write(value: unknown, path: string, out: string[], ancestors: Set<objec
       if (i > 0) out.push(',');
       const key = keys[i];
       out.push(JSON.stringify(key), ':');
-      write(record[key], `${path}${memberPath(key)}`, out, ancestors);
+      path.push(key);
+      write(record[key], path, out, ancestors);
+      path.pop();
     }
     out.push('}');
   }

@@ -132,20 +132,43 @@ export function coverageHalfWidth(z: number, p: number): number {
 
 /** Confidence that x̄ ± k s covers at least p of a normal population (two-sided, exact). */
 export function twoSidedToleranceConfidence(n: number, coverage: number, k: number): number {
+  return twoSidedToleranceConfidenceOf(n, coverage)(k);
+}
+
+/**
+ * The coverage confidence as a function of k for one n and p. The integrand's factors that do not
+ * depend on k (the half-width r(u) and the density φ(u) at the fixed Gauss-Legendre nodes) are
+ * computed once and kept, so that the root search on k costs one chi-square tail per node and
+ * call; the values are the same, bit for bit, as computing them afresh.
+ */
+function twoSidedToleranceConfidenceOf(n: number, coverage: number): (k: number) => number {
   const df = n - 1;
   const sqrtN = Math.sqrt(n);
-  const integrand = (u: number) => {
-    const r = coverageHalfWidth(u / sqrtN, coverage);
-    return normPdf(u) * chisqSf((df * r * r) / (k * k), df);
-  };
-  return 2 * integrate(integrand, 0, 10, 24);
+  const atNode = new Map<number, { scaled: number; density: number }>();
+  return (k: number) =>
+    2 *
+    integrate(
+      (u: number) => {
+        let node = atNode.get(u);
+        if (!node) {
+          const r = coverageHalfWidth(u / sqrtN, coverage);
+          node = { scaled: df * r * r, density: normPdf(u) };
+          atNode.set(u, node);
+        }
+        return node.density * chisqSf(node.scaled / (k * k), df);
+      },
+      0,
+      10,
+      24,
+    );
 }
 
 /** Exact two-sided tolerance factor (Odeh & Owen), by root finding on the coverage confidence. */
 export function toleranceFactorExact(n: number, coverage: number, confidence: number): number {
   checkTolerance(n, coverage, confidence);
   const howe = toleranceFactorHowe(n, coverage, confidence);
-  const g = (k: number) => twoSidedToleranceConfidence(n, coverage, k) - confidence;
+  const confidenceAt = twoSidedToleranceConfidenceOf(n, coverage);
+  const g = (k: number) => confidenceAt(k) - confidence;
   let lo = howe * 0.9;
   let hi = howe * 1.1;
   while (g(lo) > 0) lo *= 0.8;
