@@ -138,10 +138,11 @@ export class AnswerCache {
   }
 }
 
-/** A duration in milliseconds from the environment (0 allowed), or the fallback. */
+/** A duration in milliseconds from the environment (0 allowed), the fallback when unset or blank; anything else is refused by name. */
 export function msFromEnv(name: string, fallback: number): number {
   const raw = process.env[name];
   if (raw === undefined || raw.trim() === '') return fallback;
   const value = Number(raw);
-  return Number.isFinite(value) && value >= 0 ? value : fallback;
+  if (!Number.isFinite(value) || value < 0) throw new Error(`${name} must be a number of milliseconds, 0 or more (got "${raw}").`);
+  return value;
 }
