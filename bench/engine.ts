@@ -121,7 +121,7 @@ const HEADER = [
 ].join(' ');
 
 function measure(kind: 'standard' | 'gauge', n: number): void {
-  const repetitions = n <= 1e5 ? 15 : n <= 1e6 ? 7 : 3;
+  const repetitions = n <= 1e5 ? 15 : n <= 1e6 ? 11 : 3;
   gc?.();
   const values = normalData(n, `bench-${kind}-${n}`, kind);
   const floors: Timing[] = [];

@@ -16,19 +16,6 @@ import { INV_SQRT_2PI } from './special';
 
 const THRESH = 0.46875;
 const SQRPI = 5.6418958354775628695e-1; // 1/sqrt(π)
-const P1 = [3.1611237438705656, 113.864154151050156, 377.485237685302021, 3209.37758913846947, 0.185777706184603153];
-const Q1 = [23.6012909523441209, 244.024637934444173, 1282.61652607737228, 2844.23683343917062];
-const P2 = [
-  0.564188496988670089, 8.88314979438837594, 66.1191906371416295, 298.635138197400131, 881.95222124176909,
-  1712.04761263407058, 2051.07837782607147, 1230.33935479799725, 2.15311535474403846e-8,
-];
-const Q2 = [
-  15.7449261107098347, 117.693950891312499, 537.181101862009858, 1621.38957456669019, 3290.79923573345963,
-  4362.61909014324716, 3439.36767414372164, 1230.33935480374942,
-];
-const P3 = [0.305326634961232344, 0.360344899949804439, 0.125781726111229246, 0.0160837851487422766, 6.58749161529837803e-4, 0.0163153871373020978];
-const Q3 = [2.56852019228982242, 1.87295284992346047, 0.527905102951428412, 0.0605183413124413191, 0.00233520497626869185];
-
 /** exp(−x²/2) without the rounding error of x². */
 export function expHalfSquare(x: number): number {
   const ax = Math.abs(x);
@@ -37,16 +24,55 @@ export function expHalfSquare(x: number): number {
   return Math.exp(-0.5 * h * h) * Math.exp(-0.5 * del);
 }
 
-/** erf(y) for |y| ≤ 0.46875 (Cody's first rational function). */
+/**
+ * erf(y) for |y| ≤ 0.46875 (Cody's first rational function). The Horner loops of CALERF are
+ * written out with the coefficients as constants (the same operations in the same order, so the
+ * same bits): these functions run once per value in Anderson-Darling and the tolerance integrals.
+ */
 function erfSmall(y: number): number {
   const ysq = y * y;
-  let xnum = P1[4] * ysq;
-  let xden = ysq;
-  for (let i = 0; i < 3; i++) {
-    xnum = (xnum + P1[i]) * ysq;
-    xden = (xden + Q1[i]) * ysq;
+  const xnum = ((((0.185777706184603153 * ysq + 3.1611237438705656) * ysq + 113.864154151050156) * ysq + 377.485237685302021) * ysq);
+  const xden = (((ysq + 23.6012909523441209) * ysq + 244.024637934444173) * ysq + 1282.61652607737228) * ysq;
+  return (y * (xnum + 3209.37758913846947)) / (xden + 2844.23683343917062);
+}
+
+/**
+ * erfc(y)·e^(y²) for y > 0.46875 (Cody's second and third rational functions), so that
+ * Φ̄(x) = ½ e^(−x²/2) · erfcScaled(x/√2).
+ */
+function erfcScaled(y: number): number {
+  if (y <= 4) {
+    let xnum = 2.15311535474403846e-8 * y;
+    let xden = y;
+    xnum = (xnum + 0.564188496988670089) * y;
+    xden = (xden + 15.7449261107098347) * y;
+    xnum = (xnum + 8.88314979438837594) * y;
+    xden = (xden + 117.693950891312499) * y;
+    xnum = (xnum + 66.1191906371416295) * y;
+    xden = (xden + 537.181101862009858) * y;
+    xnum = (xnum + 298.635138197400131) * y;
+    xden = (xden + 1621.38957456669019) * y;
+    xnum = (xnum + 881.95222124176909) * y;
+    xden = (xden + 3290.79923573345963) * y;
+    xnum = (xnum + 1712.04761263407058) * y;
+    xden = (xden + 4362.61909014324716) * y;
+    xnum = (xnum + 2051.07837782607147) * y;
+    xden = (xden + 3439.36767414372164) * y;
+    return (xnum + 1230.33935479799725) / (xden + 1230.33935480374942);
   }
-  return (y * (xnum + P1[3])) / (xden + Q1[3]);
+  const ysq = 1 / (y * y);
+  let xnum = 0.0163153871373020978 * ysq;
+  let xden = ysq;
+  xnum = (xnum + 0.305326634961232344) * ysq;
+  xden = (xden + 2.56852019228982242) * ysq;
+  xnum = (xnum + 0.360344899949804439) * ysq;
+  xden = (xden + 1.87295284992346047) * ysq;
+  xnum = (xnum + 0.125781726111229246) * ysq;
+  xden = (xden + 0.527905102951428412) * ysq;
+  xnum = (xnum + 0.0160837851487422766) * ysq;
+  xden = (xden + 0.0605183413124413191) * ysq;
+  const r = (ysq * (xnum + 6.58749161529837803e-4)) / (xden + 0.00233520497626869185);
+  return (SQRPI - r) / y;
 }
 
 /**
@@ -54,28 +80,19 @@ function erfSmall(y: number): number {
  * y = x/√2 and the Gaussian factor exp(−x²/2) formed from x itself.
  */
 function upperTailLarge(x: number): number {
+  return 0.5 * expHalfSquare(x) * erfcScaled(x * Math.SQRT1_2);
+}
+
+/**
+ * Φ̄(x) for 0 ≤ x ≤ 40 at about half the cost of normalUpper, for sums over many values
+ * (Anderson-Darling): exp(−x²/2) is one exponential of the rounded x², so the relative error
+ * grows to about (x²/4 + 4)·eps (17 eps at x = 6, where a sample of a million values ends)
+ * instead of staying within a few eps. The distribution functions use normalUpper.
+ */
+export function normalUpperBulk(x: number): number {
   const y = x * Math.SQRT1_2;
-  let r: number;
-  if (y <= 4) {
-    let xnum = P2[8] * y;
-    let xden = y;
-    for (let i = 0; i < 7; i++) {
-      xnum = (xnum + P2[i]) * y;
-      xden = (xden + Q2[i]) * y;
-    }
-    r = (xnum + P2[7]) / (xden + Q2[7]);
-  } else {
-    const ysq = 1 / (y * y);
-    let xnum = P3[5] * ysq;
-    let xden = ysq;
-    for (let i = 0; i < 4; i++) {
-      xnum = (xnum + P3[i]) * ysq;
-      xden = (xden + Q3[i]) * ysq;
-    }
-    r = (ysq * (xnum + P3[4])) / (xden + Q3[4]);
-    r = (SQRPI - r) / y;
-  }
-  return 0.5 * expHalfSquare(x) * r;
+  if (y <= THRESH) return 0.5 - 0.5 * erfSmall(y);
+  return 0.5 * Math.exp(-0.5 * x * x) * erfcScaled(y);
 }
 
 /** Φ̄(x) = P(Z > x), computed directly in both tails. */
