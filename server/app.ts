@@ -2,6 +2,7 @@
  * The Express application, built from its dependencies and started elsewhere (server/main.ts), so
  * tests can run it in-process with supertest: `supertest(createApp({ db, pool, sessionSecret }))`.
  */
+import './native-hash';
 import { existsSync } from 'node:fs';
 import path from 'node:path';
 import connectPgSimple from 'connect-pg-simple';

@@ -1,5 +1,6 @@
 // The worker module of the evaluation pool: evaluates worksheets with the engine and reads
 // uploaded files. Runs in a worker thread; everything it returns is plain data.
+import '../native-hash';
 import { canonicalJson, sha256Hex } from '@shared/engine/hash';
 import { ENGINE_VERSION } from '@shared/engine/version';
 import { evaluate } from '@shared/engine/evaluate';

@@ -3,7 +3,7 @@ import { createHash } from 'node:crypto';
 import { fileURLToPath } from 'node:url';
 import { expect } from 'chai';
 import fc from 'fast-check';
-import { canonicalHash, canonicalJson, sha256Hex } from '@shared/engine/hash';
+import { canonicalHash, canonicalJson, sha256Hex, sha256HexPure } from '@shared/engine/hash';
 import { pipelineResult } from './hash-pipeline';
 
 // Reference for the canonical form: a deliberately naive serialiser that leans on the platform's
@@ -152,6 +152,8 @@ describe('canonicalJson', () => {
 });
 
 describe('sha256Hex', () => {
+  // The pure implementation is tested by name: the server installs node:crypto's in place of it
+  // (server/native-hash.ts), and other suites in this process may have loaded that.
   // Known answers: FIPS 180-2 Appendix B / NIST "Examples with intermediate values" (SHA256.pdf),
   // the examples referenced by FIPS 180-4. Digests recalled from memory and also checked against
   // node:crypto below, so a misremembered digest fails this test rather than passing silently.
@@ -167,7 +169,7 @@ describe('sha256Hex', () => {
   ];
   for (const [message, digest] of vectors) {
     it(`gives the FIPS 180 known answer for ${message.length > 60 ? `${message.length} × "a"` : JSON.stringify(message)}`, () => {
-      expect(sha256Hex(message)).to.equal(digest);
+      expect(sha256HexPure(message)).to.equal(digest);
       expect(nodeSha256(message)).to.equal(digest);
     });
   }
@@ -175,7 +177,7 @@ describe('sha256Hex', () => {
   it('agrees with node:crypto on random strings, UTF-8 encoded (fast-check)', () => {
     fc.assert(
       fc.property(fc.string({ unit: 'binary', maxLength: 300 }), (text) => {
-        expect(sha256Hex(text)).to.equal(nodeSha256(Buffer.from(text, 'utf8')));
+        expect(sha256HexPure(text)).to.equal(nodeSha256(Buffer.from(text, 'utf8')));
       }),
       { numRuns: 500 },
     );
@@ -184,14 +186,25 @@ describe('sha256Hex', () => {
   it('agrees with node:crypto on random bytes of every length around the block size (fast-check)', () => {
     fc.assert(
       fc.property(fc.uint8Array({ maxLength: 1000 }), (bytes) => {
-        expect(sha256Hex(bytes)).to.equal(nodeSha256(bytes));
+        expect(sha256HexPure(bytes)).to.equal(nodeSha256(bytes));
       }),
       { numRuns: 500 },
     );
     for (let n = 50; n <= 130; n++) {
       const bytes = new Uint8Array(n).map((_, i) => (i * 31 + n) & 255);
-      expect(sha256Hex(bytes), `length ${n}`).to.equal(nodeSha256(bytes));
+      expect(sha256HexPure(bytes), `length ${n}`).to.equal(nodeSha256(bytes));
     }
+  });
+
+  it('the installed native SHA-256 of the server computes the same digests as the pure one', async () => {
+    await import('../../server/native-hash');
+    for (const [message, digest] of vectors) expect(sha256Hex(message)).to.equal(digest);
+    fc.assert(
+      fc.property(fc.oneof(fc.string({ unit: 'binary', maxLength: 300 }), fc.uint8Array({ maxLength: 300 })), (input) => {
+        expect(sha256Hex(input)).to.equal(sha256HexPure(input));
+      }),
+      { numRuns: 300 },
+    );
   });
 
   it('canonicalHash is the SHA-256 of canonical JSON, stable for a fixed document', () => {
