@@ -38,9 +38,9 @@ export async function useCluster(choice: ClusterChoice, log: (m: string) => void
 }
 
 /** A server process on a fresh seeded database; sign-in limits high enough for many clients. */
-export async function benchServer(env: Record<string, string> = {}): Promise<TestServer> {
+export async function benchServer(env: Record<string, string> = {}, nodeArgs: string[] = []): Promise<TestServer> {
   if (!prepared) await useCluster(clusterChoice());
-  return startTestServer({ authRateLimit: 100_000, env: { LOG_LEVEL: 'silent', ...env }, startTimeoutMs: 120_000 });
+  return startTestServer({ authRateLimit: 100_000, env: { LOG_LEVEL: 'silent', ...env }, startTimeoutMs: 120_000, nodeArgs });
 }
 
 /**

@@ -36,6 +36,8 @@ export interface TestServerOptions {
   authRateLimit?: number;
   env?: Record<string, string>;
   startTimeoutMs?: number;
+  /** Extra node options for the server process (e.g. --cpu-prof for the load script's profiles). */
+  nodeArgs?: string[];
   /**
    * Serve an existing (migrated) database instead of a fresh one, e.g. a second process on the
    * first one's database, or a restart after a crash. It is not seeded and stop() does not drop it.
@@ -58,7 +60,7 @@ export async function startTestServer(options: TestServerOptions = {}): Promise<
       }
     }
 
-    child = spawn(process.execPath, ['--import', 'tsx', path.join('server', 'main.ts')], {
+    child = spawn(process.execPath, [...(options.nodeArgs ?? []), '--import', 'tsx', path.join('server', 'main.ts')], {
       cwd: projectRoot,
       stdio: ['ignore', 'pipe', 'pipe'],
       env: {
