@@ -16,6 +16,15 @@ function axisTitle(label: string, unit?: string): string {
   return unit ? `${label} (${unit})` : label;
 }
 
+/**
+ * A curve coordinate as drawn: 6 significant digits, far finer than a 420-pixel plot can show,
+ * and a third of the characters of a full-precision number in the stored results. Only for the
+ * sampled curves; bins, statistics and limits keep their full values.
+ */
+function drawn(value: number): number {
+  return value === 0 || !Number.isFinite(value) ? value : Number(value.toPrecision(6));
+}
+
 /** Number of bins: Sturges, at least 5 and at most 40. */
 function binCount(n: number): number {
   return Math.max(5, Math.min(40, Math.ceil(Math.log2(n) + 1)));
@@ -41,7 +50,7 @@ export function histogramWithNormal(sorted: Float64Array, mean: number, sd: numb
     const to = Math.max(hi, mean + 3.5 * sd);
     for (let i = 0; i <= 80; i++) {
       const x = from + ((to - from) * i) / 80;
-      curve.push({ x, y: (n * width * normPdf((x - mean) / sd)) / sd });
+      curve.push({ x: drawn(x), y: drawn((n * width * normPdf((x - mean) / sd)) / sd) });
     }
   }
   return {
@@ -84,7 +93,7 @@ export function densityWithRejection(options: {
 }): Spec {
   const [from, to] = options.range;
   const points: { x: number; density: number; region: string }[] = [];
-  const steps = 200;
+  const steps = 120; // 3.5 px apart on a 420 px plot
   const inside = (x: number) => options.rejection.some(([a, b]) => x >= a && x <= b);
   // Sample the curve, adding the region edges so the shading starts exactly at the critical values.
   const xs: number[] = [];
@@ -103,6 +112,12 @@ export function densityWithRejection(options: {
   options.rejection.forEach(([a, b], r) => {
     for (const p of points) if (p.x >= a && p.x <= b) regionPoints.push({ ...p, region: `rejection region ${r + 1}` });
   });
+  for (const list of [points, regionPoints]) {
+    for (const p of list) {
+      p.x = drawn(p.x);
+      p.density = drawn(p.density);
+    }
+  }
   const marked = Math.min(Math.max(options.statistic, from), to);
   return {
     $schema: SCHEMA,
@@ -305,9 +320,9 @@ export function capabilityPlot(mean: number, sd: number, lsl: number | undefined
   const from = Math.min(mean - 4 * sd, lsl ?? Infinity);
   const to = Math.max(mean + 4 * sd, usl ?? -Infinity);
   const points: { x: number; density: number }[] = [];
-  for (let i = 0; i <= 200; i++) {
-    const x = from + ((to - from) * i) / 200;
-    points.push({ x, density: normPdf((x - mean) / sd) / sd });
+  for (let i = 0; i <= 120; i++) {
+    const x = from + ((to - from) * i) / 120;
+    points.push({ x: drawn(x), density: drawn(normPdf((x - mean) / sd) / sd) });
   }
   const limits = [
     ...(lsl !== undefined ? [{ limit: lsl, name: 'LSL' }] : []),
