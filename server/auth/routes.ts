@@ -40,6 +40,11 @@ function logIn(req: Request, user: User): Promise<void> {
   return new Promise((resolve, reject) => req.login(user, (error) => (error ? reject(error) : resolve())));
 }
 
+/** Writes the session to its store now (express-session would otherwise write it after the answer has left). */
+function saveSession(req: Request): Promise<void> {
+  return new Promise((resolve, reject) => req.session.save((error) => (error ? reject(error) : resolve())));
+}
+
 function logOut(req: Request): Promise<void> {
   return new Promise((resolve, reject) => req.logout((error) => (error ? reject(error) : resolve())));
 }
@@ -62,8 +67,14 @@ export function authRoutes(deps: RouterDeps & { passport: passport.PassportStati
   const signupLimiter = limiter(limits, false, deps.rateLimitStores?.('signup'));
 
   return new ApiRouter('/api/auth', deps)
-    .get('/session', { access: publicRoute, summary: 'Current user (or null) and the CSRF token' }, ({ req, res, user }) => {
-      res.json({ user, csrfToken: csrfToken(req) });
+    .get('/session', { access: publicRoute, summary: 'Current user (or null) and the CSRF token' }, async ({ req, res, user }) => {
+      const fresh = req.session.csrfToken === undefined;
+      const token = csrfToken(req);
+      // A new token is only good once its session is stored. Store it before answering: when the
+      // session store cannot be written (database down), saveSession rejects and the error handler
+      // answers 503 database_unavailable instead of 200 with a token no later request could match.
+      if (fresh) await saveSession(req);
+      res.json({ user, csrfToken: token });
     })
     .post(
       '/signup',

@@ -58,6 +58,13 @@ interface BodyParserError {
 export function errorHandler(logger: Logger): ErrorRequestHandler {
   return (error: unknown, req, res, next) => {
     if (res.headersSent) {
+      // express-session stores or touches the session after the answer has been written; when the
+      // database is down that write fails here. The answer is already complete: log it, and do not
+      // hand the error on (Express's final handler would print the stack and cut the connection).
+      if (isDatabaseUnavailable(error)) {
+        logger.warn({ method: req.method, path: req.path, reason: (error as Error).message }, 'session not stored: database unavailable');
+        return;
+      }
       next(error);
       return;
     }
@@ -84,6 +91,10 @@ export function errorHandler(logger: Logger): ErrorRequestHandler {
     }
     if (isDatabaseUnavailable(error)) {
       logger.warn({ method: req.method, path: req.path, reason: (error as Error).message }, 'database unavailable');
+      // The session store lives in the same database (connect-pg-simple): drop this request's
+      // session, so that express-session neither sends a cookie for a session it could not store
+      // nor tries to write it again after this answer.
+      (req as { session?: unknown }).session = undefined;
       res.setHeader('Retry-After', '5');
       sendError(res, new HttpError(503, 'database_unavailable', databaseUnavailableMessage));
       return;

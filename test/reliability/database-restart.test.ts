@@ -5,6 +5,8 @@
  * from before still works, revisions read back complete and saves succeed. While the database is
  * down, the process stays up and answers JSON errors, not hangs. Then every backend of the
  * server's database is killed with pg_terminate_backend; again the process recovers by itself.
+ * A visitor without a session gets 503 while the session store is down, never a CSRF token of a
+ * session that was never stored, and a working one once the database is back.
  */
 import { randomBytes } from 'node:crypto';
 import { rmSync } from 'node:fs';
@@ -114,6 +116,53 @@ describe('reliability: the server recovers when PostgreSQL restarts', function (
     await savesAgain([0.9]);
     expect(server!.pid).to.equal(pid);
     process.kill(pid, 0); // still the same, living process
+  });
+
+  it('refuses to hand out a session it cannot store (503, no cookie) and hands out working ones again after the restart', async () => {
+    const pid = server!.pid;
+    const before = server!.output().length;
+    await stopCluster(cluster);
+
+    // A visitor without a cookie: the session (and its CSRF token) would be new and must be stored
+    // before the token is worth anything. With the store unreachable the answer is the outage, not
+    // 200 with a token of a session that was never saved.
+    for (let i = 0; i < 3; i++) {
+      const visitor = new SessionClient(server!.url);
+      const res = await visitor.get('/api/auth/session');
+      expect(res.status, res.text).to.equal(503);
+      expect(res.body.error.code).to.equal('database_unavailable');
+      expect(res.body.error.message).to.match(/database cannot be reached/);
+      expect(res.body.error.message).to.match(/try again/);
+      expect(res.body).not.to.have.property('csrfToken');
+      expect(res.body.error).not.to.have.property('stack');
+      expect(res.headers.get('retry-after')).to.equal('5');
+      expect(res.headers.getSetCookie(), 'no cookie for a session that was not stored').to.deep.equal([]);
+    }
+    // The signed-in client's session cannot be read either: the same 503, never "signed out".
+    const signedIn = await client.get('/api/auth/session');
+    expect(signedIn.status, signedIn.text).to.equal(503);
+    expect(signedIn.body.error.code).to.equal('database_unavailable');
+    const during = server!.output().slice(before);
+    expect(during, 'server output while down').not.to.match(/unhandled error|exited|Unhandled/i);
+
+    await ensureCluster(cluster);
+    const visitor = new SessionClient(server!.url);
+    await eventually(async () => (await visitor.get('/api/auth/session')).status === 200, 30_000, 'a new session after the restart');
+    const fresh = await visitor.get('/api/auth/session');
+    expect(fresh.status, fresh.text).to.equal(200);
+    expect(fresh.body.user).to.equal(null);
+    expect(fresh.body.csrfToken).to.be.a('string').with.length.greaterThan(20);
+    expect(visitor.cookie, 'the session cookie of the stored session').to.match(/^spreadproof\.sid=/);
+    // The token works: it belongs to a session the store can read back (sign-in checks it).
+    visitor.token = fresh.body.csrfToken;
+    const signIn = await visitor.post('/api/auth/signin', { email: demoOwner.email, password: demoOwner.password });
+    expect(signIn.status, signIn.text).to.equal(200);
+    expect(signIn.body.user.email).to.equal(demoOwner.email);
+    // And the session from before the outage is still there.
+    const again = await client.get('/api/auth/session');
+    expect(again.body.user?.email).to.equal(demoOwner.email);
+    expect(server!.pid).to.equal(pid);
+    process.kill(pid, 0);
   });
 
   it('recovers when every backend of its database is terminated', async () => {
