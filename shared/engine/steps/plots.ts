@@ -17,9 +17,11 @@ function axisTitle(label: string, unit?: string): string {
 }
 
 /**
- * A curve coordinate as drawn: 6 significant digits, far finer than a 420-pixel plot can show,
- * and a third of the characters of a full-precision number in the stored results. Only for the
- * sampled curves; bins, statistics and limits keep their full values.
+ * A density on a sampled curve as drawn: 6 significant digits, far finer than a 220-pixel-high
+ * plot can show, and a third of the characters of a full-precision number in the stored results.
+ * Only heights: positions keep their full values (readings such as 25.0012 mm with a spread of
+ * micrometres would move by a visible fraction of a point step if rounded to 6 digits), and so do
+ * bins, statistics and limits.
  */
 function drawn(value: number): number {
   return value === 0 || !Number.isFinite(value) ? value : Number(value.toPrecision(6));
@@ -50,7 +52,7 @@ export function histogramWithNormal(sorted: Float64Array, mean: number, sd: numb
     const to = Math.max(hi, mean + 3.5 * sd);
     for (let i = 0; i <= 80; i++) {
       const x = from + ((to - from) * i) / 80;
-      curve.push({ x: drawn(x), y: drawn((n * width * normPdf((x - mean) / sd)) / sd) });
+      curve.push({ x, y: drawn((n * width * normPdf((x - mean) / sd)) / sd) });
     }
   }
   return {
@@ -114,7 +116,6 @@ export function densityWithRejection(options: {
   });
   for (const list of [points, regionPoints]) {
     for (const p of list) {
-      p.x = drawn(p.x);
       p.density = drawn(p.density);
     }
   }
@@ -322,7 +323,7 @@ export function capabilityPlot(mean: number, sd: number, lsl: number | undefined
   const points: { x: number; density: number }[] = [];
   for (let i = 0; i <= 120; i++) {
     const x = from + ((to - from) * i) / 120;
-    points.push({ x: drawn(x), density: drawn(normPdf((x - mean) / sd) / sd) });
+    points.push({ x, density: drawn(normPdf((x - mean) / sd) / sd) });
   }
   const limits = [
     ...(lsl !== undefined ? [{ limit: lsl, name: 'LSL' }] : []),
