@@ -66,7 +66,7 @@ interface ReadoutEntry {
     }
     .head { display: flex; align-items: center; gap: 10px; flex-wrap: wrap; }
     .kind-icon { color: var(--mat-sys-primary); }
-    .title { margin: 0; font: var(--mat-sys-title-medium); flex: 1; min-width: 12ch; }
+    .title { margin: 0; font: var(--mat-sys-title-medium); flex: 1; min-width: 12ch; overflow-wrap: anywhere; }
     .number { color: var(--mat-sys-on-surface-variant); }
     .kind { font: var(--mat-sys-label-medium); color: var(--mat-sys-on-surface-variant); }
     .params { margin: 0; display: grid; grid-template-columns: minmax(0, 1fr); gap: 2px 16px; font: var(--mat-sys-body-medium); }
