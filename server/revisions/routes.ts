@@ -1,5 +1,6 @@
 // Revisions: timeline, save (with the moved-head check), draft evaluation, one revision,
 // re-check against the current engine, fork into a team.
+import { RawJson, sendJson } from '../http/raw-json';
 import { and, asc, eq } from 'drizzle-orm';
 import { z } from 'zod';
 import {
@@ -12,7 +13,6 @@ import {
   type RecheckAnswer,
 } from '@shared/api/worksheets';
 import { compareRevisions } from '@shared/compare/compare';
-import type { EvaluationResult } from '@shared/engine/result';
 import type { Worksheet } from '@shared/format/worksheet';
 import { memberships, revisions, worksheets } from '../../schema/index';
 import { recordAudit } from '../audit/audit';
@@ -26,7 +26,7 @@ import {
   createWorksheet,
   datasetIdsOf,
   evaluatePrepared,
-  fullRevision,
+  revisionAnswer,
   insertRevision,
   prepareDocument,
   revisionSummaries,
@@ -134,8 +134,8 @@ export function revisionRoutes(deps: RevisionDeps): ApiRouter[] {
           if (outcome.conflict === 'archived') throw new HttpError(409, 'archived', 'This worksheet is archived and read-only. An owner can restore it.');
           throw await headMoved(db, body.baseRevisionId, outcome.head!);
         }
-        const revision = await fullRevision(db, outcome.revisionId);
-        res.status(201).json({ revision, worksheet: await worksheetSummary(db, user.id, params.worksheetId) });
+        const revision = await revisionAnswer(db, outcome.revisionId);
+        sendJson(res, 201, { revision, worksheet: await worksheetSummary(db, user.id, params.worksheetId) });
       },
     )
     .post(
@@ -144,15 +144,15 @@ export function revisionRoutes(deps: RevisionDeps): ApiRouter[] {
       async ({ res, db, team, body }) => {
         const prepared = prepareDocument(body.document);
         const evaluated = await evaluatePrepared(db, evaluator, team.id, prepared);
-        const answer: EvaluationOutcome = {
-          results: JSON.parse(evaluated.resultsJson) as EvaluationResult,
+        const answer: Omit<EvaluationOutcome, 'results'> & { results: RawJson } = {
+          results: new RawJson(evaluated.resultsJson),
           contentHash: prepared.contentHash,
           resultsHash: evaluated.resultsHash,
           engineVersion: evaluated.engineVersion,
           cached: evaluated.cached,
           elapsedMs: evaluated.elapsedMs,
         };
-        res.json(answer);
+        sendJson(res, 200, answer);
       },
     );
 
@@ -161,10 +161,10 @@ export function revisionRoutes(deps: RevisionDeps): ApiRouter[] {
       '/:revisionId',
       { access: requireTeamRole('viewer', revisionTeam), summary: 'One revision with its document and stored results', params: revisionParams },
       async ({ res, db, user, params }) => {
-        const revision = await fullRevision(db, params.revisionId);
+        const revision = await revisionAnswer(db, params.revisionId);
         if (!revision) throw notFound();
         const worksheet = await worksheetSummary(db, user.id, revision.worksheetId);
-        res.json({ revision, worksheet, isHead: worksheet.head.id === revision.id });
+        sendJson(res, 200, { revision, worksheet, isHead: worksheet.head.id === revision.id });
       },
     )
     .post(
@@ -234,7 +234,7 @@ export function revisionRoutes(deps: RevisionDeps): ApiRouter[] {
           });
           return ids;
         });
-        res.status(201).json(await worksheetWithHead(db, user.id, created.worksheetId));
+        sendJson(res, 201, await worksheetWithHead(db, user.id, created.worksheetId));
       },
     );
 

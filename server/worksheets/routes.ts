@@ -1,4 +1,5 @@
 // Worksheets: list, create (blank, from an example, import), get, archive, restore, export.
+import { sendJson } from '../http/raw-json';
 import { and, asc, desc, eq, ilike, isNotNull, isNull, sql, type SQL } from 'drizzle-orm';
 import { z } from 'zod';
 import {
@@ -138,7 +139,7 @@ export function worksheetRoutes(deps: WorksheetDeps): ApiRouter[] {
           });
           return ids;
         });
-        res.status(201).json(await worksheetWithHead(db, user.id, created.worksheetId));
+        sendJson(res, 201, await worksheetWithHead(db, user.id, created.worksheetId));
       },
     )
     .post(
@@ -197,7 +198,7 @@ export function worksheetRoutes(deps: WorksheetDeps): ApiRouter[] {
           });
           return ids;
         });
-        res.status(201).json(await worksheetWithHead(db, user.id, created.worksheetId));
+        sendJson(res, 201, await worksheetWithHead(db, user.id, created.worksheetId));
       },
     );
 
@@ -237,7 +238,7 @@ export function worksheetRoutes(deps: WorksheetDeps): ApiRouter[] {
       '/:worksheetId',
       { access: requireTeamRole('viewer', worksheetTeam), summary: 'A worksheet with its head revision and results', params: worksheetParams },
       async ({ res, db, user, team, params }) => {
-        res.json({ ...(await worksheetWithHead(db, user.id, params.worksheetId)), myRole: team.role });
+        sendJson(res, 200, { ...(await worksheetWithHead(db, user.id, params.worksheetId)), myRole: team.role });
       },
     )
     .post(

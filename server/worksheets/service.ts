@@ -1,5 +1,6 @@
 // Worksheets and revisions: validating documents, evaluating them, storing immutable revisions and
 // building the answers (summaries with authors, verdicts and published markers).
+import { RawJson } from '../http/raw-json';
 import { and, asc, desc, eq, inArray, isNull, sql } from 'drizzle-orm';
 import { canonicalJson, sha256Hex } from '@shared/engine/hash';
 import type { EvaluationResult } from '@shared/engine/result';
@@ -284,7 +285,14 @@ export async function timeline(db: Db, worksheetId: string, page: number, pageSi
   return { items: await summariesFromRows(db, rows), total };
 }
 
-export async function fullRevision(db: Db, revisionId: string): Promise<Revision | null> {
+/**
+ * One revision in full for an answer: its summary, and the stored document and results as RawJson
+ * (sent as they are stored by server/http/raw-json.ts sendJson, not parsed and serialised again;
+ * the client receives the Revision shape of shared/api).
+ */
+export type RevisionAnswer = Omit<Revision, 'document' | 'results'> & { document: RawJson; results: RawJson };
+
+export async function revisionAnswer(db: Db, revisionId: string): Promise<RevisionAnswer | null> {
   const [row] = await db
     .select({ ...summaryColumns, content: revisions.content, results: revisions.results })
     .from(revisions)
@@ -292,7 +300,7 @@ export async function fullRevision(db: Db, revisionId: string): Promise<Revision
     .where(eq(revisions.id, revisionId));
   if (!row) return null;
   const [summary] = await summariesFromRows(db, [row]);
-  return { ...summary, document: JSON.parse(row.content) as Worksheet, results: JSON.parse(row.results) as EvaluationResult };
+  return { ...summary, document: new RawJson(row.content), results: new RawJson(row.results) };
 }
 
 /** Summaries of worksheets for `userId` (origin titles only from teams the user belongs to). */
@@ -379,10 +387,10 @@ export async function worksheetSummary(db: Db, userId: string, worksheetId: stri
   return summary;
 }
 
-/** The worksheet with its head revision in full. */
+/** The worksheet with its head revision in full (send it with sendJson: the head carries RawJson). */
 export async function worksheetWithHead(db: Db, userId: string, worksheetId: string) {
   const worksheet = await worksheetSummary(db, userId, worksheetId);
-  const head = await fullRevision(db, worksheet.head.id);
+  const head = await revisionAnswer(db, worksheet.head.id);
   if (!head) throw new HttpError(404, 'not_found', 'Nothing was found at this address.');
   return { worksheet, head };
 }
