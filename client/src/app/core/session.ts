@@ -5,7 +5,7 @@ import { firstValueFrom } from 'rxjs';
 import type { SessionResponse, SignupRequest, User } from '@shared/api/auth';
 
 export type { User };
-/** `GET /api/auth/session` (always 200). */
+/** `GET /api/auth/session`: 200, or 503 `database_unavailable` while the server cannot reach its database (callers treat a failure as "not signed in yet"; the next request shows the message). */
 export type SessionInfo = SessionResponse;
 
 /**
