@@ -1,9 +1,11 @@
 import type { Request, RequestHandler, Response } from 'express';
-import rateLimit, { type Store } from 'express-rate-limit';
+import { createHash } from 'node:crypto';
+import rateLimit, { ipKeyGenerator, type Store } from 'express-rate-limit';
 import type passport from 'passport';
 import { signinRequest, signupRequest, type User } from '@shared/api/auth';
 import { users } from '../../schema/index';
 import { HttpError, sendError } from '../http/errors';
+import { failureLimiter } from '../http/failure-limiter';
 import { ApiRouter, publicRoute, type RouterDeps } from '../http/route';
 import { csrfToken } from './csrf';
 import { hashPassword } from './password';
@@ -11,27 +13,52 @@ import { publicUser } from './passport';
 
 export interface AuthRateLimit {
   windowMs: number;
-  /** Failed sign-ins, or sign-ups, per client address within the window. */
+  /** Failed sign-ins per client address and account (× ADDRESS_FACTOR per address alone), or sign-ups per address, within the window. */
   limit: number;
 }
 
 export const defaultAuthRateLimit: AuthRateLimit = { windowMs: 15 * 60 * 1000, limit: 10 };
 
-function limiter(options: AuthRateLimit, skipSuccessfulRequests: boolean, store?: Store): RequestHandler {
+/**
+ * Failed sign-ins are counted per client address and account together (OWASP Authentication
+ * Cheat Sheet: throttle per account as well as per source), so that colleagues behind one
+ * office address are not locked out by one person's typos; a looser count per address alone
+ * (ADDRESS_FACTOR × the limit) still stops one source from trying many accounts. The account
+ * enters the key as a hash of the lower-cased e-mail, never as the address itself.
+ */
+export const ADDRESS_FACTOR = 10;
+
+function accountKey(req: Request): string {
+  const email = typeof req.body?.email === 'string' ? req.body.email.trim().toLowerCase() : '';
+  return `${ipKeyGenerator(req.ip ?? '0.0.0.0')}|${createHash('sha256').update(email).digest('base64url').slice(0, 22)}`;
+}
+
+function limitMessage(windowMs: number): HttpError {
+  const minutes = Math.max(1, Math.ceil(windowMs / 60000));
+  return new HttpError(429, 'rate_limited', `Too many attempts. Wait ${minutes} minute${minutes === 1 ? '' : 's'} and try again.`);
+}
+
+/** Sign-ups: every attempt counts, per client address. */
+function signupLimit(options: AuthRateLimit, store?: Store): RequestHandler {
   return rateLimit({
     store,
     windowMs: options.windowMs,
     limit: options.limit,
-    skipSuccessfulRequests,
     standardHeaders: 'draft-7',
     legacyHeaders: false,
-    handler: (_req, res, _next, used) => {
-      const minutes = Math.max(1, Math.ceil(used.windowMs / 60000));
-      sendError(
-        res,
-        new HttpError(429, 'rate_limited', `Too many attempts. Wait ${minutes} minute${minutes === 1 ? '' : 's'} and try again.`),
-      );
-    },
+    handler: (_req, res, _next, used) => sendError(res, limitMessage(used.windowMs)),
+  });
+}
+
+/** Sign-ins: failures count (on arrival; successes are taken back before the answer leaves). */
+function signinLimit(options: AuthRateLimit, store: Store | undefined, key?: (req: Request) => string): RequestHandler {
+  return failureLimiter({
+    windowMs: options.windowMs,
+    limit: options.limit,
+    store,
+    key,
+    countOnArrival: true,
+    refuse: (res, windowMs) => sendError(res, limitMessage(windowMs)),
   });
 }
 
@@ -63,8 +90,9 @@ const isUniqueViolation = (error: unknown) =>
 
 export function authRoutes(deps: RouterDeps & { passport: passport.PassportStatic; rateLimit?: AuthRateLimit }): ApiRouter {
   const limits = deps.rateLimit ?? defaultAuthRateLimit;
-  const signinLimiter = limiter(limits, true, deps.rateLimitStores?.('signin'));
-  const signupLimiter = limiter(limits, false, deps.rateLimitStores?.('signup'));
+  const signinLimiter = signinLimit(limits, deps.rateLimitStores?.('signin'), accountKey);
+  const signinAddressLimiter = signinLimit({ ...limits, limit: limits.limit * ADDRESS_FACTOR }, deps.rateLimitStores?.('signin-address'));
+  const signupLimiter = signupLimit(limits, deps.rateLimitStores?.('signup'));
 
   return new ApiRouter('/api/auth', deps)
     .get('/session', { access: publicRoute, summary: 'Current user (or null) and the CSRF token' }, async ({ req, res, user }) => {
@@ -103,7 +131,7 @@ export function authRoutes(deps: RouterDeps & { passport: passport.PassportStati
     )
     .post(
       '/signin',
-      { access: publicRoute, summary: 'Sign in with e-mail and password', body: signinRequest, before: [signinLimiter] },
+      { access: publicRoute, summary: 'Sign in with e-mail and password', body: signinRequest, before: [signinAddressLimiter, signinLimiter] },
       async ({ req, res, body }) => {
         // passport-local reads req.body; give it the normalised values.
         req.body = body;

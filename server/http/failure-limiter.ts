@@ -1,6 +1,6 @@
 /**
- * A limiter that counts only failed requests, and counts them after the answer: for published links
- * (guessed tokens).
+ * A limiter that counts only failed requests: for published links (guessed tokens) and sign-in
+ * (wrong passwords).
  *
  * Why not express-rate-limit's `skipSuccessfulRequests`: it counts every request when it arrives
  * and takes successful ones back when they finish, so requests still in flight count as failures.
@@ -11,8 +11,11 @@
  *
  * The price: requests sent at the same instant all read the count before any of them adds to it,
  * so a burst can exceed the limit by its own size. That is harmless for 256-bit link tokens, which
- * cannot be guessed anyway; sign-in (guessable passwords) keeps express-rate-limit, which counts a
- * request on arrival (server/auth/routes.ts).
+ * cannot be guessed anyway. Sign-in (guessable passwords) uses `countOnArrival`: every request
+ * counts when it arrives, as with express-rate-limit, so a burst cannot exceed the limit, and a
+ * successful one is taken back before its answer leaves, so that the client's next request already
+ * sees the count without it (express-rate-limit takes it back after the answer, and a quick next
+ * attempt could be refused for a success).
  */
 import type { Request, RequestHandler } from 'express';
 import { ipKeyGenerator, MemoryStore, type Options, type Store } from 'express-rate-limit';
@@ -28,6 +31,8 @@ export interface FailureLimiterOptions {
   refuse: (res: Parameters<RequestHandler>[1], windowMs: number) => void;
   /** Called when the store cannot be read or written; the request is then let through. */
   onStoreError?: (error: unknown) => void;
+  /** Count every request on arrival and take successes back (see above). */
+  countOnArrival?: boolean;
 }
 
 export function failureLimiter(options: FailureLimiterOptions): RequestHandler {
@@ -35,6 +40,39 @@ export function failureLimiter(options: FailureLimiterOptions): RequestHandler {
   store.init?.({ windowMs: options.windowMs } as Options);
   const keyOf = options.key ?? ((req: Request) => ipKeyGenerator(req.ip ?? '0.0.0.0'));
   if (!store.get) throw new Error('failureLimiter needs a store that can read a count (get)');
+
+  const refuseWithRetry = (res: Parameters<RequestHandler>[1], resetTime: Date | undefined) => {
+    const seconds = resetTime ? Math.max(1, Math.ceil((resetTime.getTime() - Date.now()) / 1000)) : Math.ceil(options.windowMs / 1000);
+    res.setHeader('Retry-After', String(seconds));
+    options.refuse(res, options.windowMs);
+  };
+
+  if (options.countOnArrival) {
+    if (!store.decrement) throw new Error('failureLimiter with countOnArrival needs a store that can decrement');
+    return async (req, res, next) => {
+      const key = keyOf(req);
+      let counted = false;
+      try {
+        const info = await store.increment(key);
+        counted = true;
+        if (info.totalHits > options.limit) {
+          refuseWithRetry(res, info.resetTime);
+          return;
+        }
+      } catch (error) {
+        options.onStoreError?.(error);
+      }
+      const end = res.end.bind(res) as (...args: unknown[]) => unknown;
+      res.end = ((...args: unknown[]) => {
+        if (!counted || res.statusCode >= 400) return end(...args);
+        Promise.resolve(store.decrement(key))
+          .catch((error: unknown) => options.onStoreError?.(error))
+          .finally(() => end(...args));
+        return res;
+      }) as typeof res.end;
+      next();
+    };
+  }
 
   return async (req, res, next) => {
     const key = keyOf(req);
@@ -50,9 +88,7 @@ export function failureLimiter(options: FailureLimiterOptions): RequestHandler {
       options.onStoreError?.(error);
     }
     if (hits >= options.limit) {
-      const seconds = resetTime ? Math.max(1, Math.ceil((resetTime.getTime() - Date.now()) / 1000)) : Math.ceil(options.windowMs / 1000);
-      res.setHeader('Retry-After', String(seconds));
-      options.refuse(res, options.windowMs);
+      refuseWithRetry(res, resetTime);
       return;
     }
     // A failure is counted before its answer leaves, so the next request from the same client

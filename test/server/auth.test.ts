@@ -5,6 +5,7 @@ import pino from 'pino';
 import supertest from 'supertest';
 import { users } from '../../schema/index';
 import { hashPassword, verifyPassword } from '../../server/auth/password';
+import { ADDRESS_FACTOR } from '../../server/auth/routes';
 import { sessionCookieName } from '../../server/app';
 import { Client, expectNoSecrets, openTestApp, testPassword, uniqueEmail, type AppUnderTest } from './support';
 
@@ -226,6 +227,30 @@ describe('auth API', function () {
       const res = await client.post('/api/auth/signin', { email: person.email, password: testPassword }).expect(429);
       expect(res.body.error.code).to.equal('rate_limited');
       expect(res.body.error.message).to.match(/try again/i);
+    });
+
+    it('limits failed sign-ins per account at one address, so colleagues there can still sign in, and per address across accounts', async () => {
+      // Throttling per account and per source: OWASP Authentication Cheat Sheet, "Account lockout".
+      const fresh = await openTestApp({ authRateLimit: { windowMs: 60_000, limit: 3 } });
+      try {
+        const typist = await new Client(fresh.app).signUp();
+        const colleague = await new Client(fresh.app).signUp();
+        const client = new Client(fresh.app);
+        await client.refreshToken();
+        for (let i = 0; i < 3; i++) await client.post('/api/auth/signin', { email: typist.email, password: 'wrong password' }).expect(401);
+        await client.post('/api/auth/signin', { email: typist.email.toUpperCase(), password: testPassword }).expect(429);
+        await new Client(fresh.app).signIn(colleague.email, testPassword);
+        // Many accounts tried from one address: refused after ADDRESS_FACTOR × 3 failures in all.
+        const statuses: number[] = [];
+        for (let i = 0; i < 3 * ADDRESS_FACTOR; i++) {
+          statuses.push((await client.post('/api/auth/signin', { email: `nobody-${i}@harrowvale.test`, password: 'guess' })).status);
+        }
+        // The typist's refused attempt above counted for the address too (any answer ≥ 400 does).
+        expect(statuses.filter((st) => st === 401).length).to.equal(3 * ADDRESS_FACTOR - 4);
+        expect(statuses.slice(-3)).to.deep.equal([429, 429, 429]);
+      } finally {
+        await fresh.close();
+      }
     });
 
     it('answers 429 after too many sign-ups', async () => {
