@@ -17,7 +17,7 @@
  * sees the count without it (express-rate-limit takes it back after the answer, and a quick next
  * attempt could be refused for a success).
  */
-import type { Request, RequestHandler } from 'express';
+import type { Request, RequestHandler, Response } from 'express';
 import { ipKeyGenerator, MemoryStore, type Options, type Store } from 'express-rate-limit';
 
 export interface FailureLimiterOptions {
@@ -62,14 +62,7 @@ export function failureLimiter(options: FailureLimiterOptions): RequestHandler {
       } catch (error) {
         options.onStoreError?.(error);
       }
-      const end = res.end.bind(res) as (...args: unknown[]) => unknown;
-      res.end = ((...args: unknown[]) => {
-        if (!counted || res.statusCode >= 400) return end(...args);
-        Promise.resolve(store.decrement(key))
-          .catch((error: unknown) => options.onStoreError?.(error))
-          .finally(() => end(...args));
-        return res;
-      }) as typeof res.end;
+      if (counted) beforeAnswer(res, (status) => status < 400, () => store.decrement!(key), options.onStoreError);
       next();
     };
   }
@@ -93,14 +86,20 @@ export function failureLimiter(options: FailureLimiterOptions): RequestHandler {
     }
     // A failure is counted before its answer leaves, so the next request from the same client
     // (on any process) already sees it.
-    const end = res.end.bind(res) as (...args: unknown[]) => unknown;
-    res.end = ((...args: unknown[]) => {
-      if (res.statusCode < 400) return end(...args);
-      Promise.resolve(store.increment(key))
-        .catch((error: unknown) => options.onStoreError?.(error))
-        .finally(() => end(...args));
-      return res;
-    }) as typeof res.end;
+    beforeAnswer(res, (status) => status >= 400, () => store.increment(key), options.onStoreError);
     next();
   };
+}
+
+/** Runs `action` (a counter update) before the answer leaves, for answers whose status `when` accepts. */
+function beforeAnswer(res: Response, when: (status: number) => boolean, action: () => unknown, onError?: (error: unknown) => void): void {
+  const end = res.end.bind(res) as (...args: unknown[]) => unknown;
+  res.end = ((...args: unknown[]) => {
+    if (!when(res.statusCode)) return end(...args);
+    Promise.resolve()
+      .then(action)
+      .catch((error: unknown) => onError?.(error))
+      .finally(() => end(...args));
+    return res;
+  }) as typeof res.end;
 }
