@@ -13,6 +13,8 @@ import { expect } from 'chai';
 import type { Page } from 'playwright-core';
 import supertest from 'supertest';
 import { projectRoot } from '../../server/paths';
+import type { TestServer } from '../support/server';
+import { browserSuite, type BrowserSuite } from './browser-suite';
 
 export const demoPassword = 'spreadproof-demo';
 export const people = {
@@ -188,4 +190,38 @@ export async function shownSigmaInterval(page: Page, stepId = 'sigma'): Promise<
 /** True when `shown` rounds to the handbook's printed 3-significant-digit value. */
 export function matchesPrinted(shown: number, printed: number): boolean {
   return Number(shown.toPrecision(3)) === printed;
+}
+
+/**
+ * The set-up of the collaboration suites: skipped (and saying why) without the GEAR.DAT reference
+ * file; otherwise a test server on which the analyst has saved the gear worksheet, then `prepare`
+ * (more data through the API, if any), then Chromium. Call it inside `describe`.
+ */
+export function gearBrowserSuite(
+  prepare?: (server: TestServer, sheet: AnalystWorksheet, data: { diameter: number[]; batch: string[] }) => Promise<void>,
+): BrowserSuite & { readonly sheet: AnalystWorksheet } {
+  let data: { diameter: number[]; batch: string[] } | null = null;
+  let sheet: AnalystWorksheet | undefined;
+  const suite = browserSuite({
+    skipReason: () => {
+      data = gearData();
+      return data ? undefined : gearSkipMessage;
+    },
+    prepare: async (server) => {
+      sheet = await analystSavesGearWorksheet(server.url, data!);
+      await prepare?.(server, sheet, data!);
+    },
+  });
+  return {
+    get server() {
+      return suite.server;
+    },
+    get browser() {
+      return suite.browser;
+    },
+    get sheet() {
+      if (!sheet) throw new Error('The analyst has not saved the gear worksheet yet (gearBrowserSuite before hook).');
+      return sheet;
+    },
+  };
 }

@@ -6,15 +6,10 @@
  * 95 %: 0.00551 – 0.00729, 99 %: 0.00530 – 0.00766 (printed to 3 significant digits).
  */
 import { expect } from 'chai';
-import type { Browser } from 'playwright-core';
-import { desktop, launchChromium, phone, withPage } from '../support/browser';
-import { startTestServer, type TestServer } from '../support/server';
+import { desktop, phone, withPage } from '../support/browser';
 import {
-  AnalystWorksheet,
   ApiSession,
-  analystSavesGearWorksheet,
-  gearData,
-  gearSkipMessage,
+  gearBrowserSuite,
   handbookSigmaLimits,
   matchesPrinted,
   people,
@@ -24,42 +19,24 @@ import {
 
 describe('Colleague: reads a revision at 99 % and forks it', function () {
   this.timeout(240_000);
-  let server: TestServer | undefined;
-  let browser: Browser | undefined;
-  let sheet: AnalystWorksheet;
-
-  before(async function () {
-    const data = gearData();
-    if (!data) {
-      console.log(`      skipped: ${gearSkipMessage}`);
-      this.skip();
-    }
-    server = await startTestServer();
-    sheet = await analystSavesGearWorksheet(server.url, data);
-    browser = await launchChromium();
-  });
-
-  after(async () => {
-    await browser?.close();
-    await server?.stop();
-  });
+  const suite = gearBrowserSuite();
 
   it('opens the revision from the history, views it at 99 %, forks at 99 % and sees the wider interval', async () => {
-    await withPage(browser!, { baseURL: server!.url, viewport: desktop }, async ({ page, screenshot }) => {
-      await signInThroughPage(page, people.colleague, `/worksheets/${sheet.worksheetId}/history`);
+    await withPage(suite.browser, { baseURL: suite.server.url, viewport: desktop }, async ({ page, screenshot }) => {
+      await signInThroughPage(page, people.colleague, `/worksheets/${suite.sheet.worksheetId}/history`);
 
       // The timeline: the analyst's revision with its author, message and short hash.
-      const entry = page.locator(`[data-testid="revision"][data-revision-number="${sheet.revisionNumber}"]`);
+      const entry = page.locator(`[data-testid="revision"][data-revision-number="${suite.sheet.revisionNumber}"]`);
       await entry.waitFor();
       const entryText = await entry.innerText();
       expect(entryText).to.contain('Ines Okafor');
       expect(entryText).to.contain('sigma interval at 95 %');
-      expect(entryText).to.contain(sheet.contentHash.slice(0, 10));
+      expect(entryText).to.contain(suite.sheet.contentHash.slice(0, 10));
       expect(await page.locator('[data-testid="revision"]').count()).to.equal(2);
       await screenshot('colleague-1-history');
 
-      await entry.getByRole('link', { name: `Open revision ${sheet.revisionNumber} read-only` }).click();
-      await page.waitForURL(`**/revisions/${sheet.revisionId}`);
+      await entry.getByRole('link', { name: `Open revision ${suite.sheet.revisionNumber} read-only` }).click();
+      await page.waitForURL(`**/revisions/${suite.sheet.revisionId}`);
       await page.locator('[data-testid="sheet"][data-level="saved"] [data-step-id="sigma"]').waitFor();
       const saved = await shownSigmaInterval(page);
       expect(matchesPrinted(saved.lower, handbookSigmaLimits[0.95].lower), `95 % lower ${saved.lower}`).to.equal(true);
@@ -98,7 +75,7 @@ describe('Colleague: reads a revision at 99 % and forks it', function () {
 
       // Fork at 99 % in one action: lands on the fork's first revision.
       await banner.getByRole('button', { name: 'Fork at 99 %' }).click();
-      await page.waitForURL((url) => url.pathname.startsWith('/revisions/') && !url.pathname.endsWith(sheet.revisionId));
+      await page.waitForURL((url) => url.pathname.startsWith('/revisions/') && !url.pathname.endsWith(suite.sheet.revisionId));
       await page.locator('[data-testid="sheet"][data-level="saved"] [data-step-id="sigma"]').waitFor();
       const forked = await shownSigmaInterval(page);
       expect(matchesPrinted(forked.lower, handbookSigmaLimits[0.99].lower), `fork lower ${forked.lower}`).to.equal(true);
@@ -123,10 +100,10 @@ describe('Colleague: reads a revision at 99 % and forks it', function () {
 
       // What was stored: a new worksheet whose origin is the analyst's revision, at 99 % throughout.
       const forkRevisionId = new URL(page.url()).pathname.split('/').pop()!;
-      const tomas = new ApiSession(server!.url);
+      const tomas = new ApiSession(suite.server.url);
       await tomas.signIn(people.colleague);
       const stored = await tomas.get<any>(`/api/revisions/${forkRevisionId}`);
-      expect(stored.worksheet.origin.revisionId).to.equal(sheet.revisionId);
+      expect(stored.worksheet.origin.revisionId).to.equal(suite.sheet.revisionId);
       expect(stored.revision.author.name).to.equal('Tomas Lindqvist');
       const steps = stored.revision.document.steps as { id: string; params: Record<string, unknown> }[];
       expect(steps.find((s) => s.id === 'sigma')!.params['levels']).to.deep.equal([0.99]);
@@ -136,19 +113,19 @@ describe('Colleague: reads a revision at 99 % and forks it', function () {
       expect(reviews.requests[0].reviewer.name).to.equal('Priya Raman');
       expect(reviews.requests[0].status).to.equal('open');
       // The analyst's worksheet is untouched.
-      const original = await tomas.get<any>(`/api/revisions/${sheet.revisionId}`);
+      const original = await tomas.get<any>(`/api/revisions/${suite.sheet.revisionId}`);
       expect(original.isHead).to.equal(true);
-      expect(original.revision.contentHash).to.equal(sheet.contentHash);
+      expect(original.revision.contentHash).to.equal(suite.sheet.contentHash);
     });
   });
 
   it('reads well on a 360 px phone in dark mode', async () => {
-    await withPage(browser!, { baseURL: server!.url, viewport: phone, colorScheme: 'dark' }, async ({ page, screenshot }) => {
-      await signInThroughPage(page, people.colleague, `/worksheets/${sheet.worksheetId}/history`);
+    await withPage(suite.browser, { baseURL: suite.server.url, viewport: phone, colorScheme: 'dark' }, async ({ page, screenshot }) => {
+      await signInThroughPage(page, people.colleague, `/worksheets/${suite.sheet.worksheetId}/history`);
       await page.locator('[data-testid="revision"]').first().waitFor();
       await expectNoSideways(page);
       await screenshot('colleague-phone-dark-history');
-      await page.goto(`/revisions/${sheet.revisionId}`);
+      await page.goto(`/revisions/${suite.sheet.revisionId}`);
       await page.locator('[data-testid="sheet"] [data-step-id="sigma"]').waitFor();
       await page.locator('[data-testid="level-choice"] [data-level="0.99"] button').click();
       await page.getByTestId('what-if-banner').getByText('not saved').waitFor();

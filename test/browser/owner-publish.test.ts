@@ -7,15 +7,11 @@
  * GEAR.DAT at 95 %: 0.00551 – 0.00729.
  */
 import { expect } from 'chai';
-import type { Browser, Page } from 'playwright-core';
-import { desktop, launchChromium, phone, withPage } from '../support/browser';
-import { startTestServer, type TestServer } from '../support/server';
+import type { Page } from 'playwright-core';
+import { desktop, phone, withPage } from '../support/browser';
 import {
-  AnalystWorksheet,
   ApiSession,
-  analystSavesGearWorksheet,
-  gearData,
-  gearSkipMessage,
+  gearBrowserSuite,
   handbookSigmaLimits,
   matchesPrinted,
   people,
@@ -25,29 +21,11 @@ import {
 
 describe('Owner: publishes a revision and revokes the link', function () {
   this.timeout(240_000);
-  let server: TestServer | undefined;
-  let browser: Browser | undefined;
-  let sheet: AnalystWorksheet;
-
-  before(async function () {
-    const data = gearData();
-    if (!data) {
-      console.log(`      skipped: ${gearSkipMessage}`);
-      this.skip();
-    }
-    server = await startTestServer();
-    sheet = await analystSavesGearWorksheet(server.url, data);
-    browser = await launchChromium();
-  });
-
-  after(async () => {
-    await browser?.close();
-    await server?.stop();
-  });
+  const suite = gearBrowserSuite();
 
   it('publishes; a reader without sign-in sees the results; after revoking, a clear "no longer available" page', async () => {
-    await withPage(browser!, { baseURL: server!.url, viewport: desktop }, async ({ page, screenshot }) => {
-      await signInThroughPage(page, people.analyst, `/revisions/${sheet.revisionId}`);
+    await withPage(suite.browser, { baseURL: suite.server.url, viewport: desktop }, async ({ page, screenshot }) => {
+      await signInThroughPage(page, people.analyst, `/revisions/${suite.sheet.revisionId}`);
       await page.locator('[data-testid="sheet"] [data-step-id="sigma"]').waitFor();
       await page.getByTestId('open-publish').click();
       const dialog = page.getByRole('dialog');
@@ -56,7 +34,7 @@ describe('Owner: publishes a revision and revokes the link', function () {
       await linkField.waitFor();
       const link = await linkField.inputValue();
       const url = new URL(link);
-      expect(url.origin).to.equal(new URL(server!.url).origin);
+      expect(url.origin).to.equal(new URL(suite.server.url).origin);
       expect(url.pathname).to.match(/^\/p\/[A-Za-z0-9_-]{43}$/);
       await dialog.getByTestId('copy-link').click();
       await dialog.getByText('Copied').first().waitFor();
@@ -64,12 +42,12 @@ describe('Owner: publishes a revision and revokes the link', function () {
       await screenshot('owner-1-publish-dialog');
 
       // A reader with no account, in a browser of their own.
-      await withPage(browser!, { baseURL: server!.url, viewport: desktop }, async (reader) => {
+      await withPage(suite.browser, { baseURL: suite.server.url, viewport: desktop }, async (reader) => {
         await reader.page.goto(url.pathname);
         await reader.page.getByTestId('published-title').waitFor();
         expect(await reader.page.getByTestId('published-title').innerText()).to.equal('Gear diameter spread');
-        expect(await reader.page.getByTestId('published-revision').innerText()).to.equal(String(sheet.revisionNumber));
-        expect(await reader.page.getByTestId('published-content-hash').innerText()).to.equal(sheet.contentHash);
+        expect(await reader.page.getByTestId('published-revision').innerText()).to.equal(String(suite.sheet.revisionNumber));
+        expect(await reader.page.getByTestId('published-content-hash').innerText()).to.equal(suite.sheet.contentHash);
         const interval = await shownSigmaInterval(reader.page);
         expect(matchesPrinted(interval.lower, handbookSigmaLimits[0.95].lower), `lower ${interval.lower}`).to.equal(true);
         expect(matchesPrinted(interval.upper, handbookSigmaLimits[0.95].upper), `upper ${interval.upper}`).to.equal(true);
@@ -95,7 +73,7 @@ describe('Owner: publishes a revision and revokes the link', function () {
       });
 
       // The same link on a phone in dark mode.
-      await withPage(browser!, { baseURL: server!.url, viewport: phone, colorScheme: 'dark' }, async (reader) => {
+      await withPage(suite.browser, { baseURL: suite.server.url, viewport: phone, colorScheme: 'dark' }, async (reader) => {
         await reader.page.goto(url.pathname);
         await reader.page.getByTestId('published-title').waitFor();
         await expectNoSideways(reader.page);
@@ -109,7 +87,7 @@ describe('Owner: publishes a revision and revokes the link', function () {
       await dialog.getByText('no longer available').first().waitFor();
       await screenshot('owner-5-revoked');
 
-      await withPage(browser!, { baseURL: server!.url, viewport: desktop }, async (reader) => {
+      await withPage(suite.browser, { baseURL: suite.server.url, viewport: desktop }, async (reader) => {
         reader.allowFailedResponse(url.pathname.replace('/p/', '/api/public/'), 410);
         await reader.page.goto(url.pathname);
         await reader.page.getByTestId('published-revoked').waitFor();
@@ -126,32 +104,32 @@ describe('Owner: publishes a revision and revokes the link', function () {
       });
 
       // The stored link says revoked.
-      const ines = new ApiSession(server!.url);
+      const ines = new ApiSession(suite.server.url);
       await ines.signIn(people.analyst);
-      const links = await ines.get<any>(`/api/worksheets/${sheet.worksheetId}/links`);
+      const links = await ines.get<any>(`/api/worksheets/${suite.sheet.worksheetId}/links`);
       expect(links.items).to.have.length(1);
       expect(links.items[0].revokedAt).to.be.a('string');
     });
   });
 
   it('shows the owner the published marker in the history, and the team page the audit trail', async () => {
-    const ines = new ApiSession(server!.url);
+    const ines = new ApiSession(suite.server.url);
     await ines.signIn(people.analyst);
-    await ines.post(`/api/revisions/${sheet.revisionId}/links`, {});
-    await withPage(browser!, { baseURL: server!.url, viewport: desktop }, async ({ page, screenshot }) => {
-      await signInThroughPage(page, people.analyst, `/worksheets/${sheet.worksheetId}/history`);
-      await page.locator(`[data-testid="revision"][data-revision-number="${sheet.revisionNumber}"] [data-testid="published-marker"]`).waitFor();
+    await ines.post(`/api/revisions/${suite.sheet.revisionId}/links`, {});
+    await withPage(suite.browser, { baseURL: suite.server.url, viewport: desktop }, async ({ page, screenshot }) => {
+      await signInThroughPage(page, people.analyst, `/worksheets/${suite.sheet.worksheetId}/history`);
+      await page.locator(`[data-testid="revision"][data-revision-number="${suite.sheet.revisionNumber}"] [data-testid="published-marker"]`).waitFor();
       await screenshot('owner-8-history-published');
 
-      await page.goto(`/teams/${sheet.teamId}`);
+      await page.goto(`/teams/${suite.sheet.teamId}`);
       const audit = page.getByTestId('audit-trail');
       await audit.locator('[data-testid="audit-event"][data-action="link.publish"]').first().waitFor();
       expect(await audit.locator('[data-testid="audit-event"][data-action="revision.save"]').count()).to.be.greaterThan(0);
       await page.getByTestId('archived-worksheets').waitFor();
       await screenshot('owner-9-team-audit');
     });
-    await withPage(browser!, { baseURL: server!.url, viewport: phone, colorScheme: 'dark' }, async ({ page, screenshot }) => {
-      await signInThroughPage(page, people.analyst, `/teams/${sheet.teamId}`);
+    await withPage(suite.browser, { baseURL: suite.server.url, viewport: phone, colorScheme: 'dark' }, async ({ page, screenshot }) => {
+      await signInThroughPage(page, people.analyst, `/teams/${suite.sheet.teamId}`);
       await page.getByTestId('audit-trail').locator('[data-testid="audit-event"]').first().waitFor();
       await expectNoSideways(page);
       await screenshot('owner-10-team-phone-dark');

@@ -7,15 +7,11 @@
  * GEAR.DAT: 95 %: 0.00551 – 0.00729, 99 %: 0.00530 – 0.00766.
  */
 import { expect } from 'chai';
-import type { Browser, Page } from 'playwright-core';
-import { desktop, launchChromium, phone, withPage } from '../support/browser';
-import { startTestServer, type TestServer } from '../support/server';
+import type { Page } from 'playwright-core';
+import { desktop, phone, withPage } from '../support/browser';
 import {
-  AnalystWorksheet,
   ApiSession,
-  analystSavesGearWorksheet,
-  gearData,
-  gearSkipMessage,
+  gearBrowserSuite,
   gearWorksheet,
   handbookSigmaLimits,
   matchesPrinted,
@@ -26,19 +22,8 @@ import {
 
 describe('Reviewer: compares two revisions and approves one', function () {
   this.timeout(240_000);
-  let server: TestServer | undefined;
-  let browser: Browser | undefined;
-  let sheet: AnalystWorksheet;
   let fork: { worksheetId: string; revisionId: string; contentHash: string };
-
-  before(async function () {
-    const data = gearData();
-    if (!data) {
-      console.log(`      skipped: ${gearSkipMessage}`);
-      this.skip();
-    }
-    server = await startTestServer();
-    sheet = await analystSavesGearWorksheet(server.url, data);
+  const suite = gearBrowserSuite(async (server, sheet, data) => {
     // The colleague's fork at 99 % (what colleague.test.ts does through the page).
     const tomas = new ApiSession(server.url);
     await tomas.signIn(people.colleague);
@@ -53,16 +38,10 @@ describe('Reviewer: compares two revisions and approves one', function () {
     const team = await tomas.get<any>(`/api/teams/${sheet.teamId}`);
     const priyaId = team.members.find((m: { email: string }) => m.email === people.reviewer).userId;
     await tomas.post(`/api/revisions/${fork.revisionId}/review-requests`, { reviewerId: priyaId, message: 'Same data, read at 99 %.' });
-    browser = await launchChromium();
-  });
-
-  after(async () => {
-    await browser?.close();
-    await server?.stop();
   });
 
   it('sees the changed interval highlighted, is stopped on bad input, and approves the fork', async () => {
-    await withPage(browser!, { baseURL: server!.url, viewport: desktop }, async ({ page, screenshot }) => {
+    await withPage(suite.browser, { baseURL: suite.server.url, viewport: desktop }, async ({ page, screenshot }) => {
       await signInThroughPage(page, people.reviewer);
 
       // The request waits in the reviewer's list, reached from the account menu.
@@ -112,7 +91,7 @@ describe('Reviewer: compares two revisions and approves one', function () {
       expect(compareCalls).to.equal(0);
       await screenshot('reviewer-2-same-revision');
 
-      await page.goto(`/compare?from=${sheet.revisionId}&to=${fork.revisionId}`);
+      await page.goto(`/compare?from=${suite.sheet.revisionId}&to=${fork.revisionId}`);
       const panel = page.getByTestId('review-panel');
       await panel.waitFor();
       await page.getByTestId('result-changes').waitFor();
@@ -121,7 +100,7 @@ describe('Reviewer: compares two revisions and approves one', function () {
       await panel.getByTestId('verdict-changes').locator('input').check();
       await panel.getByTestId('send-verdict').click();
       await panel.getByText('Say which changes you are asking for.').waitFor();
-      const priya = new ApiSession(server!.url);
+      const priya = new ApiSession(suite.server.url);
       await priya.signIn(people.reviewer);
       expect((await priya.get<any>(`/api/revisions/${fork.revisionId}/reviews`)).reviews).to.have.length(0);
       await screenshot('reviewer-3-comment-required');
@@ -143,7 +122,7 @@ describe('Reviewer: compares two revisions and approves one', function () {
       expect(stored.reviews[0].verdict).to.equal('approved');
       expect(stored.reviews[0].reviewer.name).to.equal('Priya Raman');
       expect(stored.reviews[0].contentHash).to.equal(fork.contentHash);
-      expect((await priya.get<any>(`/api/revisions/${sheet.revisionId}/reviews`)).reviews).to.have.length(0);
+      expect((await priya.get<any>(`/api/revisions/${suite.sheet.revisionId}/reviews`)).reviews).to.have.length(0);
       // The verdict answered the request.
       expect(stored.requests[0].status).to.equal('answered');
       expect(stored.requests[0].verdictId).to.equal(stored.reviews[0].id);
@@ -156,8 +135,8 @@ describe('Reviewer: compares two revisions and approves one', function () {
   });
 
   it('reads well on a 360 px phone in dark mode', async () => {
-    await withPage(browser!, { baseURL: server!.url, viewport: phone, colorScheme: 'dark' }, async ({ page, screenshot }) => {
-      await signInThroughPage(page, people.reviewer, `/compare?from=${sheet.revisionId}&to=${fork.revisionId}`);
+    await withPage(suite.browser, { baseURL: suite.server.url, viewport: phone, colorScheme: 'dark' }, async ({ page, screenshot }) => {
+      await signInThroughPage(page, people.reviewer, `/compare?from=${suite.sheet.revisionId}&to=${fork.revisionId}`);
       await page.getByTestId('result-changes').waitFor();
       await page.getByTestId('review-panel').waitFor();
       await page.getByTestId('pick-from').getByText('Revision 2').waitFor();
