@@ -11,9 +11,9 @@
 // are computed here from the same values with the textbook formulas (sample variance with divisor
 // n − 1), so the test fails if the page shows anything else.
 import { expect } from 'chai';
-import type { Browser, Locator, Page } from 'playwright-core';
-import { desktop, launchChromium, phone, withPage } from '../support/browser';
-import { startTestServer, type TestServer } from '../support/server';
+import type { Locator, Page } from 'playwright-core';
+import { desktop, phone, withPage } from '../support/browser';
+import { browserSuite } from './browser-suite';
 
 const analyst = { email: 'ines.okafor@harrowvale.test', name: 'Ines Okafor' };
 const demoPassword = 'spreadproof-demo';
@@ -96,22 +96,10 @@ async function previewSettled(page: Page): Promise<void> {
 
 describe('browser: the analyst builds, checks and saves a worksheet', function () {
   this.timeout(240_000);
-  let server: TestServer;
-  let browser: Browser;
-
-  before(async function () {
-    this.timeout(180_000);
-    server = await startTestServer({ seed: true });
-    browser = await launchChromium();
-  });
-
-  after(async () => {
-    await browser?.close();
-    await server?.stop();
-  });
+  const suite = browserSuite({ server: { seed: true }, startTimeout: 180_000 });
 
   it('creates a worksheet, uploads a CSV, adds four analysis steps, sees numbers, formulas and plots, saves', async () => {
-    await withPage(browser, { baseURL: server.url, viewport: desktop }, async ({ page, screenshot }) => {
+    await withPage(suite.browser, { baseURL: suite.server.url, viewport: desktop }, async ({ page, screenshot }) => {
       await signIn(page);
       await page.getByTestId('worksheet-table').waitFor();
       await fontsReady(page);
@@ -215,7 +203,7 @@ describe('browser: the analyst builds, checks and saves a worksheet', function (
   });
 
   it('edits a table as text and a note with a formula in the code editor', async () => {
-    await withPage(browser, { baseURL: server.url, viewport: desktop }, async ({ page, screenshot }) => {
+    await withPage(suite.browser, { baseURL: suite.server.url, viewport: desktop }, async ({ page, screenshot }) => {
       await signIn(page);
       await createWorksheet(page, 'Text editing');
       await page.getByRole('button', { name: 'Add a Data step' }).click();
@@ -259,7 +247,7 @@ describe('browser: the analyst builds, checks and saves a worksheet', function (
   });
 
   it('shows what changed when someone saved first, and keeps the edit as a fork', async () => {
-    await withPage(browser, { baseURL: server.url, viewport: desktop }, async ({ page, screenshot, allowFailedResponse }) => {
+    await withPage(suite.browser, { baseURL: suite.server.url, viewport: desktop }, async ({ page, screenshot, allowFailedResponse }) => {
       await signIn(page);
       const worksheetId = await createWorksheet(page, 'Concurrent edits');
       await page.getByRole('button', { name: 'Add a Data step' }).click();
@@ -297,7 +285,7 @@ describe('browser: the analyst builds, checks and saves a worksheet', function (
   });
 
   it('explains bad inputs: a confidence level out of range, a file that is not a table, a broken pasted table', async () => {
-    await withPage(browser, { baseURL: server.url, viewport: desktop }, async ({ page, screenshot, allowFailedResponse }) => {
+    await withPage(suite.browser, { baseURL: suite.server.url, viewport: desktop }, async ({ page, screenshot, allowFailedResponse }) => {
       await signIn(page);
       await createWorksheet(page, 'Bad inputs');
       await page.getByRole('button', { name: 'Add a Data step' }).click();
@@ -346,7 +334,7 @@ describe('browser: the analyst builds, checks and saves a worksheet', function (
   });
 
   it('keeps an unsaved draft over a reload, asks before leaving, and flags steps when normality fails', async () => {
-    await withPage(browser, { baseURL: server.url, viewport: desktop }, async ({ page, screenshot }) => {
+    await withPage(suite.browser, { baseURL: suite.server.url, viewport: desktop }, async ({ page, screenshot }) => {
       await signIn(page);
       await createWorksheet(page, 'Skewed shaft readings');
       await page.getByRole('button', { name: 'Add a Data step' }).click();
@@ -382,7 +370,7 @@ describe('browser: the analyst builds, checks and saves a worksheet', function (
   });
 
   it('fits a 360 px phone in the dark scheme', async () => {
-    await withPage(browser, { baseURL: server.url, viewport: phone, colorScheme: 'dark' }, async ({ page, screenshot }) => {
+    await withPage(suite.browser, { baseURL: suite.server.url, viewport: phone, colorScheme: 'dark' }, async ({ page, screenshot }) => {
       await signIn(page);
       await page.getByTestId('worksheet-table').waitFor();
       await expectNoHorizontalScroll(page, 'home');

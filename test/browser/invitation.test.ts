@@ -5,9 +5,10 @@
 // invitation flow of issue 6 (single-use expiring link, sign up from the link, member with the role).
 import { expect } from 'chai';
 import pg from 'pg';
-import type { Browser, Page } from 'playwright-core';
-import { launchChromium, phone, withPage } from '../support/browser';
-import { startTestServer, type TestServer } from '../support/server';
+import type { Page } from 'playwright-core';
+import { phone, withPage } from '../support/browser';
+import type { TestServer } from '../support/server';
+import { browserSuite } from './browser-suite';
 
 const demoPassword = 'spreadproof-demo';
 const owner = 'ines.okafor@harrowvale.test';
@@ -48,26 +49,14 @@ async function waitForMessage(server: TestServer, to: string, subject: RegExp): 
 
 describe('browser: invitation by e-mail', function () {
   this.timeout(180_000);
-  let server: TestServer;
-  let browser: Browser;
-
-  before(async function () {
-    this.timeout(180_000);
-    server = await startTestServer({ seed: true, env: { SMTP_URL: '', SITE_ADMINS: '' } });
-    browser = await launchChromium();
-  });
-
-  after(async () => {
-    await browser?.close();
-    await server?.stop();
-  });
+  const suite = browserSuite({ server: { seed: true, env: { SMTP_URL: '', SITE_ADMINS: '' } }, startTimeout: 180_000 });
 
   it('invites a newcomer, who signs up from the mailed link and is a member with the given role', async () => {
     let link = '';
     let teamUrl = '';
 
     // The owner sends the invitation and finds it in the development mailbox.
-    await withPage(browser, { baseURL: server.url }, async ({ page, screenshot }) => {
+    await withPage(suite.browser, { baseURL: suite.server.url }, async ({ page, screenshot }) => {
       await signIn(page, owner);
       await page.getByRole('link', { name: /Metrology Lab/ }).first().click();
       await page.waitForURL('**/teams/*');
@@ -85,7 +74,7 @@ describe('browser: invitation by e-mail', function () {
       await panel.scrollIntoViewIfNeeded();
       await screenshot('invitation-1-owner-sent');
 
-      await waitForMessage(server, newcomer, /invites you to “Metrology Lab” on Spreadproof/);
+      await waitForMessage(suite.server, newcomer, /invites you to “Metrology Lab” on Spreadproof/);
       await page.getByTestId('user-menu').click();
       await page.getByRole('menuitem', { name: 'Notification settings' }).click();
       await page.getByRole('link', { name: 'Open the mailbox' }).click();
@@ -97,7 +86,7 @@ describe('browser: invitation by e-mail', function () {
       const anchor = page.getByTestId('message-text').locator('a[href*="/invitation#"]');
       expect(await anchor.count()).to.equal(1);
       link = (await anchor.getAttribute('href'))!;
-      expect(new URL(link).origin).to.equal(new URL(server.url).origin);
+      expect(new URL(link).origin).to.equal(new URL(suite.server.url).origin);
       await screenshot('invitation-2-mailbox-text');
       // The HTML part is shown in a sandboxed frame, without breaking the page's CSP.
       await page.getByRole('radio', { name: 'HTML' }).click();
@@ -107,7 +96,7 @@ describe('browser: invitation by e-mail', function () {
     });
 
     // The newcomer opens the link in a browser of their own, signs up there and is in the team.
-    await withPage(browser, { baseURL: server.url }, async ({ page, screenshot }) => {
+    await withPage(suite.browser, { baseURL: suite.server.url }, async ({ page, screenshot }) => {
       await page.goto(link);
       await page.getByTestId('invitation').waitFor();
       expect(await page.getByRole('heading', { level: 1 }).textContent()).to.contain('Join Metrology Lab');
@@ -131,7 +120,7 @@ describe('browser: invitation by e-mail', function () {
     });
 
     // The link worked once; the owner heard of the new member; the account signs in.
-    await withPage(browser, { baseURL: server.url, viewport: phone }, async ({ page, screenshot, allowFailedResponse }) => {
+    await withPage(suite.browser, { baseURL: suite.server.url, viewport: phone }, async ({ page, screenshot, allowFailedResponse }) => {
       allowFailedResponse('/api/invitations/lookup', 410);
       await page.goto(link);
       await page.getByTestId('link-error').waitFor();
@@ -139,6 +128,6 @@ describe('browser: invitation by e-mail', function () {
       await screenshot('invitation-6-used-link-phone');
       await signIn(page, newcomer, newcomerPassword);
     });
-    await waitForMessage(server, owner, /Nadia Quill joined “Metrology Lab”/);
+    await waitForMessage(suite.server, owner, /Nadia Quill joined “Metrology Lab”/);
   });
 });

@@ -12,11 +12,10 @@
  */
 import path from 'node:path';
 import { expect } from 'chai';
-import type { Browser } from 'playwright-core';
 import { demoOwner, SessionClient } from '../../bench/support/session-client';
 import { hostileDocument, markdownFragments } from '../fuzz/generators';
-import { desktop, launchChromium, phone, screenshotDir, withPage } from '../support/browser';
-import { startTestServer, type TestServer } from '../support/server';
+import { desktop, phone, screenshotDir, withPage } from '../support/browser';
+import { browserSuite } from './browser-suite';
 
 // Wide but harmless notes (invented content; the widths are what matters).
 const longWord = '#'.repeat(400);
@@ -32,36 +31,28 @@ const title = '<img src=x onerror="window.__spreadproofPwned=1">{{constructor.co
 
 describe('Published page: hostile titles and notes run nothing', function () {
   this.timeout(240_000);
-  let server: TestServer | undefined;
-  let browser: Browser | undefined;
   let token: string;
-
-  before(async () => {
-    server = await startTestServer();
-    const owner = new SessionClient(server.url);
-    await owner.signIn(demoOwner.email, demoOwner.password);
-    const teamId = (await owner.get('/api/teams')).body.teams[0].id;
-    const created = SessionClient.expect(await owner.post(`/api/teams/${teamId}/worksheets`, { source: 'blank', title: 'Hostile' }), 201, 'create');
-    // Every fragment once, a few per note.
-    const notes: string[] = [];
-    for (let i = 0; i < markdownFragments.length; i += 4) notes.push(markdownFragments.slice(i, i + 4).join('\n\n'));
-    notes.push(...wideNotes);
-    const saved = SessionClient.expect(
-      await owner.post(`/api/worksheets/${created.body.worksheet.id}/revisions`, { baseRevisionId: created.body.head.id, document: hostileDocument(title, notes) }),
-      201,
-      'save',
-    );
-    token = SessionClient.expect(await owner.post(`/api/revisions/${saved.body.revision.id}/links`, {}), 201, 'publish').body.token;
-    browser = await launchChromium();
-  });
-
-  after(async () => {
-    await browser?.close();
-    await server?.stop();
+  const suite = browserSuite({
+    prepare: async (server) => {
+      const owner = new SessionClient(server.url);
+      await owner.signIn(demoOwner.email, demoOwner.password);
+      const teamId = (await owner.get('/api/teams')).body.teams[0].id;
+      const created = SessionClient.expect(await owner.post(`/api/teams/${teamId}/worksheets`, { source: 'blank', title: 'Hostile' }), 201, 'create');
+      // Every fragment once, a few per note.
+      const notes: string[] = [];
+      for (let i = 0; i < markdownFragments.length; i += 4) notes.push(markdownFragments.slice(i, i + 4).join('\n\n'));
+      notes.push(...wideNotes);
+      const saved = SessionClient.expect(
+        await owner.post(`/api/worksheets/${created.body.worksheet.id}/revisions`, { baseRevisionId: created.body.head.id, document: hostileDocument(title, notes) }),
+        201,
+        'save',
+      );
+      token = SessionClient.expect(await owner.post(`/api/revisions/${saved.body.revision.id}/links`, {}), 201, 'publish').body.token;
+    },
   });
 
   it('shows the title as text and runs none of the payloads', async () => {
-    await withPage(browser!, { baseURL: server!.url, viewport: desktop }, async ({ page, screenshot }) => {
+    await withPage(suite.browser, { baseURL: suite.server.url, viewport: desktop }, async ({ page, screenshot }) => {
       const dialogs: string[] = [];
       page.on('dialog', (dialog) => {
         dialogs.push(dialog.message());
@@ -94,13 +85,13 @@ describe('Published page: hostile titles and notes run nothing', function () {
       expect(report.scriptUrls).to.deep.equal([]);
       expect(report.frames).to.equal(0);
       expect(report.images).to.equal(0);
-      const origin = new URL(server!.url).origin;
+      const origin = new URL(suite.server.url).origin;
       for (const src of report.scripts) expect(src.startsWith(`${origin}/`), `script ${src}`).to.equal(true);
     });
   });
   for (const [name, viewport] of [['phone', phone], ['desktop', desktop]] as const) {
     it(`keeps long words, wide formulas and tables inside their card (${name}, ${viewport.width} px)`, async () => {
-      await withPage(browser!, { baseURL: server!.url, viewport }, async ({ page, screenshot }) => {
+      await withPage(suite.browser, { baseURL: suite.server.url, viewport }, async ({ page, screenshot }) => {
         await page.goto(`/p/${token}`);
         await page.getByTestId('published-title').waitFor();
         await page.getByTestId('note-html').first().waitFor();

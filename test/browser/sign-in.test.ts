@@ -4,9 +4,9 @@
 // console errors, CSP violations and outside requests (test/support/browser.ts).
 // Reference: the demo seed and sign-in behaviour agreed in contracts.md.
 import { expect } from 'chai';
-import type { Browser, Page } from 'playwright-core';
-import { desktop, launchChromium, phone, withPage } from '../support/browser';
-import { startTestServer, type TestServer } from '../support/server';
+import type { Page } from 'playwright-core';
+import { desktop, phone, withPage } from '../support/browser';
+import { browserSuite } from './browser-suite';
 
 const owner = { email: 'ines.okafor@harrowvale.test', name: 'Ines Okafor' };
 const demoPassword = 'spreadproof-demo';
@@ -34,22 +34,10 @@ async function fontsReady(page: Page): Promise<void> {
 
 describe('browser: sign in, home, team page, sign out', function () {
   this.timeout(120_000);
-  let server: TestServer;
-  let browser: Browser;
-
-  before(async function () {
-    this.timeout(180_000);
-    server = await startTestServer({ seed: true });
-    browser = await launchChromium();
-  });
-
-  after(async () => {
-    await browser?.close();
-    await server?.stop();
-  });
+  const suite = browserSuite({ server: { seed: true }, startTimeout: 180_000 });
 
   it('signs in as the demo owner, shows the team, opens the team page and signs out', async () => {
-    await withPage(browser, { baseURL: server.url, viewport: desktop }, async ({ page, screenshot }) => {
+    await withPage(suite.browser, { baseURL: suite.server.url, viewport: desktop }, async ({ page, screenshot }) => {
       await page.goto('/');
       // Signed out, the home page sends the user to sign-in.
       await page.waitForURL('**/sign-in');
@@ -102,7 +90,7 @@ describe('browser: sign in, home, team page, sign out', function () {
   });
 
   it('says clearly that a wrong password did not match, and stays on sign-in', async () => {
-    await withPage(browser, { baseURL: server.url }, async ({ page, screenshot, allowFailedResponse }) => {
+    await withPage(suite.browser, { baseURL: suite.server.url }, async ({ page, screenshot, allowFailedResponse }) => {
       allowFailedResponse('/api/auth/signin', 401);
       await page.goto('/sign-in');
       await signIn(page, owner.email, 'not-the-password');
@@ -118,7 +106,7 @@ describe('browser: sign in, home, team page, sign out', function () {
   });
 
   it('sends the user to sign-in when the session ends, and back to the same page after signing in', async () => {
-    await withPage(browser, { baseURL: server.url }, async ({ page, context, allowFailedResponse }) => {
+    await withPage(suite.browser, { baseURL: suite.server.url }, async ({ page, context, allowFailedResponse }) => {
       await page.goto('/sign-in');
       await signIn(page, owner.email, demoPassword);
       const teamLink = page.getByRole('link', { name: new RegExp(demoTeam) });
@@ -140,7 +128,7 @@ describe('browser: sign in, home, team page, sign out', function () {
   });
 
   it('shows field errors before sending an empty or invalid form', async () => {
-    await withPage(browser, { baseURL: server.url }, async ({ page }) => {
+    await withPage(suite.browser, { baseURL: suite.server.url }, async ({ page }) => {
       await page.goto('/sign-in');
       await page.getByRole('button', { name: 'Sign in', exact: true }).click();
       await page.getByText('E-mail is required.').waitFor();
@@ -152,7 +140,7 @@ describe('browser: sign in, home, team page, sign out', function () {
   });
 
   it('fits a 360 px wide phone screen in the dark scheme', async () => {
-    await withPage(browser, { baseURL: server.url, viewport: phone, colorScheme: 'dark' }, async ({ page, screenshot }) => {
+    await withPage(suite.browser, { baseURL: suite.server.url, viewport: phone, colorScheme: 'dark' }, async ({ page, screenshot }) => {
       await page.goto('/sign-in');
       await page.getByRole('heading', { name: 'Sign in' }).waitFor();
       await fontsReady(page);

@@ -4,9 +4,9 @@
 // behaviour agreed in contracts.md (owner-only member management, unknown e-mail → 404, last owner
 // → 409 last_owner, password ≥ 10 characters, validation details per field).
 import { expect } from 'chai';
-import type { Browser, Page } from 'playwright-core';
-import { launchChromium, phone, withPage } from '../support/browser';
-import { startTestServer, type TestServer } from '../support/server';
+import type { Page } from 'playwright-core';
+import { phone, withPage } from '../support/browser';
+import { browserSuite } from './browser-suite';
 
 const demoPassword = 'spreadproof-demo';
 
@@ -29,22 +29,10 @@ function memberRow(page: Page, email: string) {
 
 describe('browser: teams and sign-up', function () {
   this.timeout(120_000);
-  let server: TestServer;
-  let browser: Browser;
-
-  before(async function () {
-    this.timeout(180_000);
-    server = await startTestServer({ seed: true });
-    browser = await launchChromium();
-  });
-
-  after(async () => {
-    await browser?.close();
-    await server?.stop();
-  });
+  const suite = browserSuite({ server: { seed: true }, startTimeout: 180_000 });
 
   it('lets an owner create a team, add a member, change the role and remove the member', async () => {
-    await withPage(browser, { baseURL: server.url }, async ({ page, screenshot, allowFailedResponse }) => {
+    await withPage(suite.browser, { baseURL: suite.server.url }, async ({ page, screenshot, allowFailedResponse }) => {
       await signIn(page, 'ines.okafor@harrowvale.test');
 
       // An empty name is refused by the form before anything is sent.
@@ -105,7 +93,7 @@ describe('browser: teams and sign-up', function () {
   });
 
   it('shows the last-owner rule when the only owner tries to step down or leave', async () => {
-    await withPage(browser, { baseURL: server.url, viewport: phone }, async ({ page, screenshot, allowFailedResponse }) => {
+    await withPage(suite.browser, { baseURL: suite.server.url, viewport: phone }, async ({ page, screenshot, allowFailedResponse }) => {
       allowFailedResponse(/^\/api\/teams\/[^/]+\/members\/[^/]+$/, 409);
       await signIn(page, 'ines.okafor@harrowvale.test');
       await page.getByRole('link', { name: /Metrology Lab/ }).click();
@@ -127,7 +115,7 @@ describe('browser: teams and sign-up', function () {
   });
 
   it('shows a member who is not an owner the members without the controls', async () => {
-    await withPage(browser, { baseURL: server.url }, async ({ page }) => {
+    await withPage(suite.browser, { baseURL: suite.server.url }, async ({ page }) => {
       await signIn(page, 'marc.delaunay@harrowvale.test');
       await page.getByRole('link', { name: /Metrology Lab/ }).click();
       await page.getByTestId('members').locator('li').first().waitFor();
@@ -139,7 +127,7 @@ describe('browser: teams and sign-up', function () {
   });
 
   it('signs up with field errors from the form and from the server, then lands on home', async () => {
-    await withPage(browser, { baseURL: server.url }, async ({ page, screenshot, allowFailedResponse }) => {
+    await withPage(suite.browser, { baseURL: suite.server.url }, async ({ page, screenshot, allowFailedResponse }) => {
       allowFailedResponse('/api/auth/signup', 400);
       allowFailedResponse('/api/auth/signup', 409);
       await page.goto('/sign-in');
