@@ -15,10 +15,8 @@ import { createLogger } from '../../server/log';
 import { Client, openTestApp, testPassword, uniqueEmail, type AppUnderTest } from './support';
 import { addWorksheetFixture, worksheetExpectations, worksheetPathValues, type WorksheetMatrixValues } from './worksheets-matrix';
 import { addMailFixture, mailExpectations, mailPathValues, type MailMatrixValues } from './mail-matrix';
+import { anySignedIn, callers, everyone, teamAtLeast, type Caller, type Statuses } from './matrix-statuses';
 
-const callers = ['owner', 'editor', 'reviewer', 'viewer', 'non-member', 'signed-out'] as const;
-type Caller = (typeof callers)[number];
-type Statuses = Record<Caller, number>;
 
 interface Fixture {
   teamId: string;
@@ -40,21 +38,6 @@ interface Expectation {
   expect: Statuses;
 }
 
-const everyone = (status: number): Statuses => ({
-  owner: status,
-  editor: status,
-  reviewer: status,
-  viewer: status,
-  'non-member': status,
-  'signed-out': status,
-});
-const anySignedIn = (status: number): Statuses => ({ ...everyone(status), 'signed-out': 401 });
-const teamAtLeast = (role: 'owner' | 'editor' | 'reviewer' | 'viewer', status: number): Statuses => {
-  const order = ['owner', 'editor', 'reviewer', 'viewer'];
-  const statuses = { 'non-member': 404, 'signed-out': 401 } as Statuses;
-  for (const r of order) statuses[r as Caller] = order.indexOf(r) <= order.indexOf(role) ? status : 403;
-  return statuses;
-};
 
 const expectations: Record<string, Expectation> = {
   'GET /api/health': { expect: everyone(200) },

@@ -14,10 +14,8 @@ import { invitations, passwordResets } from '../../schema/index';
 import type { Database } from '../../server/db/client';
 import { newToken } from '../../server/mail/tokens';
 import { testPassword, uniqueEmail } from './support';
+import { anySignedIn, everyone, teamAtLeast, type Caller, type SignedInCaller, type Statuses } from './matrix-statuses';
 
-type Caller = 'owner' | 'editor' | 'reviewer' | 'viewer' | 'non-member' | 'signed-out';
-type SignedInCaller = Exclude<Caller, 'signed-out'>;
-type Statuses = Record<Caller, number>;
 
 export interface MailMatrixValues {
   invitationId: string;
@@ -41,14 +39,6 @@ interface MatrixExpectation {
   expect: Statuses;
 }
 
-const everyone = (status: number): Statuses => ({ owner: status, editor: status, reviewer: status, viewer: status, 'non-member': status, 'signed-out': status });
-const anySignedIn = (status: number): Statuses => ({ ...everyone(status), 'signed-out': 401 });
-const teamAtLeast = (role: 'owner' | 'editor' | 'reviewer' | 'viewer', status: number): Statuses => {
-  const order = ['owner', 'editor', 'reviewer', 'viewer'] as const;
-  const statuses = { 'non-member': 404, 'signed-out': 401 } as Statuses;
-  for (const r of order) statuses[r] = order.indexOf(r) <= order.indexOf(role) ? status : 403;
-  return statuses;
-};
 
 const values = (f: MatrixFixture) => f.mail!;
 

@@ -18,9 +18,8 @@ import { parsedInfo, readTable } from '../../server/datasets/parse';
 import { prepareDocument } from '../../server/worksheets/service';
 import { tokenHash } from '../../server/publishing/routes';
 import { boreDocument } from './worksheets-support';
+import { anySignedIn, everyone, teamAtLeast, type Caller, type Statuses } from './matrix-statuses';
 
-type Caller = 'owner' | 'editor' | 'reviewer' | 'viewer' | 'non-member' | 'signed-out';
-type Statuses = Record<Caller, number>;
 
 export interface WorksheetMatrixValues {
   worksheetId: string;
@@ -45,14 +44,6 @@ interface MatrixExpectation {
   expect: Statuses;
 }
 
-const everyone = (status: number): Statuses => ({ owner: status, editor: status, reviewer: status, viewer: status, 'non-member': status, 'signed-out': status });
-const anySignedIn = (status: number): Statuses => ({ ...everyone(status), 'signed-out': 401 });
-const teamAtLeast = (role: 'owner' | 'editor' | 'reviewer' | 'viewer', status: number): Statuses => {
-  const order = ['owner', 'editor', 'reviewer', 'viewer'] as const;
-  const statuses = { 'non-member': 404, 'signed-out': 401 } as Statuses;
-  for (const r of order) statuses[r] = order.indexOf(r) <= order.indexOf(role) ? status : 403;
-  return statuses;
-};
 
 const ws = (f: MatrixFixture) => f.worksheet!;
 const documentV3 = () => boreDocument({ title: 'Matrix worksheet', levels: [0.9] });
