@@ -2,40 +2,17 @@
  * Helpers of the reliability suites: an in-process app on a database of the suite's choosing, and
  * checks of stored revisions straight from the tables (hashes recomputed from the stored text).
  */
-import { randomBytes } from 'node:crypto';
 import { expect } from 'chai';
 import pg from 'pg';
 import { canonicalJson, sha256Hex } from '@shared/engine/hash';
-import { createApp, type AppDeps } from '../../server/app';
-import { openDatabase } from '../../server/db/client';
-import { Evaluator } from '../../server/evaluation/evaluator';
-import type { AppUnderTest } from '../server/support';
+import type { AppDeps } from '../../server/app';
+import { openAppWithEvaluator, type ServiceHarness } from '../server/worksheets-support';
 
-export interface AppOn extends AppUnderTest {
-  evaluator: Evaluator;
-}
+export type AppOn = ServiceHarness;
 
 /** createApp() on the database at `url`, with an evaluator of its own (closed with the app). */
 export function openAppOn(url: string, overrides: Partial<AppDeps> = {}): AppOn {
-  const database = openDatabase(url, { max: 5 });
-  const evaluator = new Evaluator(database.db, { maxThreads: 1 });
-  const app = createApp({
-    db: database.db,
-    pool: database.pool,
-    sessionSecret: randomBytes(24).toString('base64url'),
-    authRateLimit: { windowMs: 60_000, limit: 1000 },
-    evaluator,
-    ...overrides,
-  });
-  return {
-    app,
-    database,
-    evaluator,
-    close: async () => {
-      await evaluator.close();
-      await database.close();
-    },
-  };
+  return openAppWithEvaluator(url, { overrides, evaluatorOptions: { maxThreads: 1 }, poolSize: 5 });
 }
 
 export async function withClient<T>(url: string, body: (client: pg.Client) => Promise<T>): Promise<T> {

@@ -15,20 +15,20 @@ export interface ServiceHarness extends AppUnderTest {
   evaluator: Evaluator;
 }
 
-/** The app on the run's database with an evaluator of its own (closed with the harness). */
-export async function openServiceApp(
-  overrides: Partial<AppDeps> = {},
-  evaluatorOptions: EvaluatorOptions = {},
-): Promise<ServiceHarness> {
-  const database = openDatabase(await suiteDatabaseUrl(), { max: 10 });
-  const evaluator = new Evaluator(database.db, { maxThreads: 2, ...evaluatorOptions });
+/** createApp() on the database at `url` with an evaluator of its own (both closed with the harness). */
+export function openAppWithEvaluator(
+  url: string,
+  options: { overrides?: Partial<AppDeps>; evaluatorOptions?: EvaluatorOptions; poolSize?: number } = {},
+): ServiceHarness {
+  const database = openDatabase(url, { max: options.poolSize ?? 10 });
+  const evaluator = new Evaluator(database.db, { maxThreads: 2, ...options.evaluatorOptions });
   const app = createApp({
     db: database.db,
     pool: database.pool,
     sessionSecret: randomBytes(24).toString('base64url'),
     authRateLimit: { windowMs: 60_000, limit: 1000 },
     evaluator,
-    ...overrides,
+    ...options.overrides,
   });
   return {
     app,
@@ -39,6 +39,14 @@ export async function openServiceApp(
       await database.close();
     },
   };
+}
+
+/** The app on the run's database with an evaluator of its own (closed with the harness). */
+export async function openServiceApp(
+  overrides: Partial<AppDeps> = {},
+  evaluatorOptions: EvaluatorOptions = {},
+): Promise<ServiceHarness> {
+  return openAppWithEvaluator(await suiteDatabaseUrl(), { overrides, evaluatorOptions });
 }
 
 export type RoleName = 'owner' | 'editor' | 'reviewer' | 'viewer' | 'outsider';
