@@ -1,8 +1,8 @@
 import type { Request, RequestHandler, Response } from 'express';
-import { createHash } from 'node:crypto';
 import rateLimit, { ipKeyGenerator, type Store } from 'express-rate-limit';
 import type passport from 'passport';
 import { signinRequest, signupRequest, type User } from '@shared/api/auth';
+import { sha256Hex } from '@shared/engine/hash';
 import { users } from '../../schema/index';
 import { HttpError, sendError } from '../http/errors';
 import { failureLimiter } from '../http/failure-limiter';
@@ -30,7 +30,7 @@ export const ADDRESS_FACTOR = 10;
 
 function accountKey(req: Request): string {
   const email = typeof req.body?.email === 'string' ? req.body.email.trim().toLowerCase() : '';
-  return `${ipKeyGenerator(req.ip ?? '0.0.0.0')}|${createHash('sha256').update(email).digest('base64url').slice(0, 22)}`;
+  return `${ipKeyGenerator(req.ip ?? '0.0.0.0')}|${sha256Hex(email).slice(0, 32)}`;
 }
 
 function limitMessage(windowMs: number): HttpError {

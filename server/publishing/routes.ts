@@ -12,6 +12,7 @@ import { publishedLinks, revisions, users, worksheets } from '../../schema/index
 import { recordAudit } from '../audit/audit';
 import { HttpError, notFound, sendError } from '../http/errors';
 import { AnswerCache } from '../http/answer-cache';
+import { RawJson, stringifyWithRaw } from '../http/raw-json';
 import { failureLimiter } from '../http/failure-limiter';
 import { ApiRouter, publicRoute, requireTeamRole, type RouterDeps } from '../http/route';
 import { linkTeam, revisionTeam, worksheetTeam } from '../worksheets/access';
@@ -172,6 +173,7 @@ export function publishingRoutes(deps: RouterDeps & { publicRateLimit?: PublicRa
     async ({ req, res, db }) => {
       const token = req.params.token;
       if (typeof token !== 'string' || !tokenPattern.test(token)) throw notFound('There is no published worksheet at this link.');
+      const hash = tokenHash(token);
       const [row] = await db
         .select({
           revokedAt: publishedLinks.revokedAt,
@@ -187,14 +189,14 @@ export function publishingRoutes(deps: RouterDeps & { publicRateLimit?: PublicRa
         .from(publishedLinks)
         .innerJoin(revisions, eq(revisions.id, publishedLinks.revisionId))
         .innerJoin(worksheets, eq(worksheets.id, revisions.worksheetId))
-        .where(eq(publishedLinks.tokenHash, tokenHash(token)));
+        .where(eq(publishedLinks.tokenHash, hash));
       if (!row) throw notFound('There is no published worksheet at this link.');
       if (row.revokedAt) throw new HttpError(410, 'link_revoked', 'This link has been withdrawn by the team that published it.');
       // The stored document and results are canonical JSON text already: they are spliced into
-      // the answer as they are (no parse and re-serialisation of the results, which are most of
-      // the bytes), so the reader gets exactly the text the hashes were taken of.
+      // the answer as they are (RawJson), so the reader gets exactly the text the hashes were
+      // taken of, without a parse and re-serialisation of the results (most of the bytes).
       const { title } = JSON.parse(row.content) as { title?: string };
-      const head: Omit<PublicRevisionAnswer, 'revision'> & { revision: Omit<PublicRevisionAnswer['revision'], 'document' | 'results'> } = {
+      const answer: Omit<PublicRevisionAnswer, 'revision'> & { revision: Omit<PublicRevisionAnswer['revision'], 'document' | 'results'> & { document: RawJson; results: RawJson } } = {
         // The title of the pinned revision, not the worksheet's current one.
         title: title ?? row.title,
         revision: {
@@ -203,12 +205,13 @@ export function publishingRoutes(deps: RouterDeps & { publicRateLimit?: PublicRa
           contentHash: row.contentHash,
           resultsHash: row.resultsHash,
           engineVersion: row.engineVersion,
+          document: new RawJson(row.content),
+          results: new RawJson(row.results),
         },
       };
-      const opening = JSON.stringify(head);
       res.set('X-Robots-Tag', 'noindex, nofollow');
       res.set('Referrer-Policy', 'no-referrer');
-      answers.sendAndStore(res, tokenHash(token), `${opening.slice(0, -2)},"document":${row.content},"results":${row.results}}}`, 'application/json; charset=utf-8');
+      answers.sendAndStore(res, hash, stringifyWithRaw(answer), 'application/json; charset=utf-8');
     },
   );
 
